@@ -76,7 +76,7 @@ pub fn states_vec(
     width: usize,
     order: &ComponentOrder,
 ) -> Result<Vec<StressState>, TensorError> {
-    if width == 0 || values.len() % width != 0 {
+    if width == 0 || !values.len().is_multiple_of(width) {
         return Err(TensorError::BatchShape {
             len: values.len(),
             width,

@@ -1,6 +1,8 @@
 //! Checks of the stress-state measures against published values and independent
 //! computations. Each check names its source.
 
+#![allow(clippy::unwrap_used, clippy::collapsible_if)]
+
 use std::f64::consts::PI;
 
 use ductrace_tensor::{ComponentOrder, Stress, StressState, Undefined, batch};
