@@ -64,6 +64,8 @@ mod legacy;
 mod mesh;
 pub mod roles;
 mod series;
+#[doc(hidden)]
+pub mod testenc;
 pub mod write;
 mod xml;
 
