@@ -205,14 +205,14 @@ pub fn accumulate<L: FractureLocus + ?Sized>(
             inv_prev = None;
         }
         let d = rule.damage_from_integral(phi);
-        if crossing.is_none() {
-            if let Some(fraction) = crossing_fraction(d_prev, d) {
-                crossing = Some(Crossing {
-                    row: k - 1,
-                    fraction,
-                    eqps: e0 + fraction * de,
-                });
-            }
+        if crossing.is_none()
+            && let Some(fraction) = crossing_fraction(d_prev, d)
+        {
+            crossing = Some(Crossing {
+                row: k - 1,
+                fraction,
+                eqps: e0 + fraction * de,
+            });
         }
         d_prev = d;
         integral.push(phi);
@@ -476,7 +476,7 @@ pub fn update_cells<L: FractureLocus + ?Sized>(
         let e_new = fields.eqps[i];
         let de = e_new - cell.eqps;
         let inv_new = inverse_at(locus, fields, i);
-        if !(de >= 0.0) {
+        if de.is_nan() || de < 0.0 {
             return Err(cell_error_strain(cell.eqps, e_new, row, first_cell + i));
         }
         if de > 0.0 {

@@ -289,15 +289,15 @@ impl FitSpec {
     pub fn free(&mut self, name: &str, start: Option<f64>) -> Result<&mut Self, LocusError> {
         let model = self.model.id();
         let p = self.find(name)?;
-        if let Some(v) = start {
-            if p.transform.to_internal(v).is_none() {
-                return Err(LocusError::OutOfDomain {
-                    model,
-                    name: p.name,
-                    value: v,
-                    requirement: p.transform.requirement(),
-                });
-            }
+        if let Some(v) = start
+            && p.transform.to_internal(v).is_none()
+        {
+            return Err(LocusError::OutOfDomain {
+                model,
+                name: p.name,
+                value: v,
+                requirement: p.transform.requirement(),
+            });
         }
         p.free = true;
         p.value = start;
@@ -971,7 +971,7 @@ fn build_report(
         let eig = jtj.clone().symmetric_eigen();
         let max = eig.eigenvalues.iter().fold(0.0f64, |a, &b| a.max(b.abs()));
         let min = eig.eigenvalues.iter().fold(f64::INFINITY, |a, &b| a.min(b));
-        if !(max > 0.0) || !(min > 1e-12 * max) {
+        if max.is_nan() || max <= 0.0 || min.is_nan() || min <= 1e-12 * max {
             return None;
         }
         jtj.try_inverse().map(|inv| inv * s2)

@@ -243,7 +243,7 @@ pub fn johnson_cook_rate_temperature_factor(
     strain_rate_ratio: f64,
     homologous_temperature: f64,
 ) -> Option<f64> {
-    if !(strain_rate_ratio > 0.0) || !homologous_temperature.is_finite() {
+    if positive(strain_rate_ratio).is_none() || !homologous_temperature.is_finite() {
         return None;
     }
     positive((1.0 + d4 * strain_rate_ratio.ln()) * (1.0 + d5 * homologous_temperature))
@@ -360,7 +360,7 @@ impl ModifiedMohrCoulomb {
         let root = ((1.0 + self.c1 * self.c1) / 3.0).sqrt();
         let tail = eta + phi.sin() / 3.0;
         let b2 = root * phi.cos() + self.c1 * tail;
-        if !(b1 > 0.0 && b2 > 0.0) {
+        if positive(b1).is_none() || positive(b2).is_none() {
             return None;
         }
         let ln_p = (self.a / self.c2).ln() + b1.ln() + b2.ln();
@@ -406,9 +406,7 @@ impl FractureLocus for ModifiedMohrCoulomb {
         let b1 = self.first_bracket(theta_bar)?;
         let b2 = self.second_bracket(eta, theta_bar)?;
         let p = self.a / self.c2 * b1 * b2;
-        if !(p > 0.0) {
-            return None;
-        }
+        positive(p)?;
         positive((-p.ln() / self.n).exp())
     }
 
@@ -521,15 +519,11 @@ impl HosfordCoulomb {
                 s_log += p * d.ln();
             }
         }
-        if !(s > 0.0) {
-            return None;
-        }
+        positive(s)?;
         let g_term = (s / 2.0).powf(1.0 / self.a);
         let h = 2.0 * eta + t.f13;
         let q = g_term + self.c * h;
-        if !(q > 0.0) {
-            return None;
-        }
+        positive(q)?;
         let inv_n = 1.0 / self.n;
         let ln_strain = self.b.ln() + inv_n * (self.c.ln_1p() - q.ln());
         positive(ln_strain.exp())?;
@@ -555,9 +549,7 @@ impl FractureLocus for HosfordCoulomb {
         let g = self.hosford_term(theta_bar)?;
         let h = 2.0 * eta + hc_terms(theta_bar).f13;
         let q = g + self.c * h;
-        if !(q > 0.0) {
-            return None;
-        }
+        positive(q)?;
         positive(self.b * ((self.c.ln_1p() - q.ln()) / self.n).exp())
     }
 
