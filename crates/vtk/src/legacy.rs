@@ -243,6 +243,9 @@ pub struct LegacyArrayInfo {
     pub data_type: String,
     /// Number of tuples.
     pub tuples: usize,
+    /// Component names from the array's `METADATA` / `COMPONENT_NAMES` block (VTK >= 8 writes them);
+    /// empty when absent or when their number does not match `components`.
+    pub component_names: Vec<String>,
 }
 
 /// Cells in VTK's offsets/connectivity form.
@@ -483,14 +486,26 @@ impl<'a> Scanner<'a> {
             && (end == self.b.len() || self.b[end].is_ascii_whitespace())
     }
 
-    /// Skip a `METADATA` block: lines up to and including the next blank line.
-    fn skip_metadata(&mut self) {
+    /// Skip a `METADATA` block (lines up to and including the next blank line), returning the names of
+    /// its `COMPONENT_NAMES` section (empty if none). `INFORMATION` entries are skipped.
+    fn skip_metadata(&mut self) -> Vec<String> {
+        let mut names = Vec::new();
+        let mut in_names = false;
         while self.pos < self.b.len() {
             let (_, line) = self.raw_line();
-            if line.iter().all(|c| c.is_ascii_whitespace()) {
+            let line = line.trim_ascii();
+            if line.is_empty() {
                 break;
             }
+            if line.eq_ignore_ascii_case(b"COMPONENT_NAMES") {
+                in_names = true;
+            } else if line.len() >= 11 && line[..11].eq_ignore_ascii_case(b"INFORMATION") {
+                in_names = false;
+            } else if in_names {
+                names.push(decode_name(&String::from_utf8_lossy(line)));
+            }
         }
+        names
     }
 
     /// Record the span of a data section of `count` values of type `ty` that starts here.
@@ -713,14 +728,22 @@ impl LegacyFile {
         // Current attribute section: location and its tuple count.
         let mut current: Option<(LegacyLocation, usize)> = None;
 
+        // Whether the previous section was an array (a METADATA block then belongs to it).
+        let mut after_array = false;
         while let Some(line) = s.next_line()? {
             let kw = line.keyword();
+            let was_after_array = std::mem::replace(&mut after_array, false);
             match kw.as_str() {
-                "metadata" => s.skip_metadata(),
+                "metadata" => {
+                    let names = s.skip_metadata();
+                    if was_after_array {
+                        attach_names(arrays.last_mut(), names);
+                    }
+                }
                 "field" if current.is_none() => {
                     let n = count_tok(&mut s, &line, 2, "number of arrays")?;
-                    for (name, _, _, sec) in field_block(&mut s, n, None)? {
-                        dataset_fields.push((name, sec));
+                    for f in field_block(&mut s, n, None)? {
+                        dataset_fields.push((f.name, f.section));
                     }
                 }
                 "points" => {
@@ -822,7 +845,9 @@ impl LegacyFile {
                             context: "found outside POINT_DATA / CELL_DATA".to_string(),
                         });
                     };
+                    let before = arrays.len();
                     attribute(&mut s, &line, &kw, loc, n, &mut arrays, &mut sections)?;
+                    after_array = arrays.len() > before;
                 }
                 _ => {
                     let found = line.toks.first().copied().unwrap_or_default();
@@ -1124,15 +1149,35 @@ fn parse_version(v: &str) -> Option<(u32, u32)> {
     Some((a.trim().parse().ok()?, b.trim().parse().ok()?))
 }
 
-/// A `FIELD` block of `n` arrays: (name, components, type name, section). Arrays of `expected_tuples` (if any)
-/// must have that many tuples. `NULL_ARRAY` entries and METADATA blocks are skipped.
+/// Set an array's component names from a METADATA block when their number matches its components.
+fn attach_names(array: Option<&mut LegacyArrayInfo>, names: Vec<String>) {
+    if let Some(a) = array
+        && !names.is_empty()
+        && names.len() == a.components
+    {
+        a.component_names = names;
+    }
+}
+
+/// One array of a FIELD block.
+struct FieldArray {
+    name: String,
+    components: usize,
+    type_name: String,
+    component_names: Vec<String>,
+    section: Section,
+}
+
+/// A `FIELD` block of `n` arrays. Arrays of `expected_tuples` (if any) must have that many tuples.
+/// `NULL_ARRAY` entries are skipped; METADATA blocks give the preceding array its component names.
 fn field_block(
     s: &mut Scanner<'_>,
     n: usize,
     expected_tuples: Option<usize>,
-) -> Result<Vec<(String, usize, String, Section)>> {
-    let mut out = Vec::new();
+) -> Result<Vec<FieldArray>> {
+    let mut out: Vec<FieldArray> = Vec::new();
     let mut found = 0usize;
+    let mut after_array = false;
     while found < n {
         let line = s.next_line()?.ok_or_else(|| LegacyError::Truncated {
             at: s.at(s.pos),
@@ -1140,10 +1185,19 @@ fn field_block(
         })?;
         let first = line.toks.first().copied().unwrap_or_default();
         if first.eq_ignore_ascii_case("metadata") {
-            s.skip_metadata();
+            let names = s.skip_metadata();
+            if after_array
+                && let Some(last) = out.last_mut()
+                && !names.is_empty()
+                && names.len() == last.components
+            {
+                last.component_names = names;
+            }
+            after_array = false;
             continue;
         }
         found += 1;
+        after_array = false;
         if first == "NULL_ARRAY" {
             continue;
         }
@@ -1162,8 +1216,15 @@ fn field_block(
             });
         }
         let count = mul(ncomp, ntup, s, &line, &what)?;
-        let sec = s.data(count, ty, what, line.start)?;
-        out.push((name, ncomp, ty_name, sec));
+        let section = s.data(count, ty, what, line.start)?;
+        out.push(FieldArray {
+            name,
+            components: ncomp,
+            type_name: ty_name,
+            component_names: Vec::new(),
+            section,
+        });
+        after_array = true;
     }
     Ok(out)
 }
@@ -1187,6 +1248,7 @@ fn attribute(
                 kind,
                 data_type,
                 tuples: n,
+                component_names: Vec::new(),
             });
             sections.push(sec);
         };
@@ -1257,8 +1319,18 @@ fn attribute(
         }
         "field" => {
             let nf = count_tok(s, line, 2, "number of arrays")?;
-            for (name, ncomp, ty_name, sec) in field_block(s, nf, Some(n))? {
-                push(name, LegacyKind::Field, ncomp, ty_name, sec);
+            for f in field_block(s, nf, Some(n))? {
+                arrays.push(LegacyArrayInfo {
+                    name: f.name,
+                    location,
+                    components: f.components,
+                    kind: LegacyKind::Field,
+                    data_type: f.type_name,
+                    tuples: n,
+                    component_names: Vec::new(),
+                });
+                sections.push(f.section);
+                attach_names(arrays.last_mut(), f.component_names);
             }
         }
         "lookup_table" => {
@@ -1590,6 +1662,11 @@ nan inf
         let mut v = Vec::new();
         f.read(b, index(&f, "stress"), &mut v).unwrap();
         assert_eq!(v[5], 6.0);
+        assert_eq!(
+            f.arrays()[0].component_names,
+            ["XX", "YY", "ZZ", "XY", "YZ", "XZ"]
+        );
+        assert!(f.arrays()[1].component_names.is_empty());
         f.read(b, index(&f, "eqps"), &mut v).unwrap();
         assert!(v[0].is_nan() && v[1] == f64::INFINITY);
         assert_eq!(f.arrays()[1].data_type, "float");
