@@ -332,8 +332,9 @@ pub struct PointResult {
     pub eqps_model: Option<f64>,
     /// Linear damage at the fracture instant (damage objective only).
     pub damage_at_end: Option<f64>,
-    /// The residual r_i (see the module documentation).
-    pub log_residual: f64,
+    /// The residual r_i (see the module documentation); `None` where the model is
+    /// undefined (only in the report of [`LocusError::UndefinedAtFit`]).
+    pub log_residual: Option<f64>,
 }
 
 /// The result of a fit.
@@ -349,9 +350,10 @@ pub struct FitReport {
     pub parameters: Vec<FittedParameter>,
     /// Per point (in input order).
     pub points: Vec<PointResult>,
-    /// Sum of squared residuals Σ r_i².
+    /// Sum of squared residuals Σ r_i² (an undefined point counts with the penalty
+    /// residual 10⁴, which only the report of [`LocusError::UndefinedAtFit`] can carry).
     pub sum_of_squares: f64,
-    /// √(Σ r_i² / m).
+    /// √(Σ r_i² / m), dimensionless (a log strain ratio).
     pub rms_log_residual: f64,
     /// s² = SSR/(m − p), `None` when m ≤ p.
     pub residual_variance: Option<f64>,
@@ -718,13 +720,22 @@ pub fn fit_damage(spec: &FitSpec, paths: &[SpecimenPath]) -> Result<FitReport, L
     run_fit(spec, &data, Objective::Damage, &names, Some(paths))
 }
 
-/// Index of the parameter scaled to match the data at each start, and how: ε_f scales
-/// by λ when this parameter is multiplied by λ^power.
-fn scale_parameter(kind: ModelKind, values: &[f64]) -> (usize, f64) {
+/// Index of the parameter scaled to match the data at each start: D2 (jc), c2 (mmc),
+/// b (hc).
+fn scale_index(kind: ModelKind) -> usize {
     match kind {
-        ModelKind::JohnsonCook => (1, 1.0),
-        ModelKind::ModifiedMohrCoulomb => (3, values[1]),
-        ModelKind::HosfordCoulomb => (1, 1.0),
+        ModelKind::JohnsonCook => 1,
+        ModelKind::ModifiedMohrCoulomb => 3,
+        ModelKind::HosfordCoulomb => 1,
+    }
+}
+
+/// The exponent k such that multiplying the scale parameter by λ^k multiplies ε_f by λ:
+/// 1 for D2 (with D1 scaled too) and b; n for c2, since ε_f ∝ c2^(1/n).
+fn scale_power(kind: ModelKind, values: &[f64]) -> f64 {
+    match kind {
+        ModelKind::ModifiedMohrCoulomb => values[1],
+        _ => 1.0,
     }
 }
 
@@ -754,13 +765,18 @@ fn run_fit(
     let mut base = vec![0.0; spec.parameters.len()];
     let mut free = Vec::new();
     let mut candidates: Vec<Vec<f64>> = Vec::new();
-    let (scale_index, _) = scale_parameter(kind, &base);
+    let scale_index = scale_index(kind);
+    // Seed of the scale parameter before matching: 1, or A for the mmc c2 (A/c2 ≈ 1).
+    let scale_seed = match kind {
+        ModelKind::ModifiedMohrCoulomb => spec.parameters[0].value.unwrap_or(1.0),
+        _ => 1.0,
+    };
     for (j, ps) in spec.parameters.iter().enumerate() {
         if ps.free {
             free.push((j, ps.transform));
             let starts: Vec<f64> = match ps.value {
                 Some(v) => vec![v],
-                None if j == scale_index => vec![1.0],
+                None if j == scale_index => vec![scale_seed],
                 None if ps.default_starts.is_empty() => {
                     return Err(LocusError::MissingValue {
                         model,
@@ -798,22 +814,6 @@ fn run_fit(
             }
         }
     }
-    // MMC: c2 starts at A (then scaled), so A/c2 starts near 1.
-    if kind == ModelKind::ModifiedMohrCoulomb
-        && spec.parameters[3].free
-        && spec.parameters[3].value.is_none()
-    {
-        let a = base[0].max(1e-12);
-        if let Some(c) = free.iter().position(|&(j, _)| j == 3) {
-            candidates[c] = vec![if spec.parameters[0].free {
-                spec.parameters[0].value.unwrap_or(1.0)
-            } else {
-                a
-            }];
-        }
-    }
-    // A free A without a start has no default: caught above (empty default starts).
-
     let scale_free =
         spec.parameters[scale_index].free && spec.parameters[scale_index].value.is_none();
     let lm = LevenbergMarquardt::new()
@@ -891,7 +891,7 @@ fn run_fit(
         let point = report
             .points
             .iter()
-            .find(|p| p.eqps_model.is_none() && p.damage_at_end.is_none())
+            .find(|p| p.log_residual.is_none())
             .map(|p| p.name.clone())
             .unwrap_or_default();
         return Err(LocusError::UndefinedAtFit {
@@ -928,8 +928,7 @@ fn start_values(
         let r = residuals(&values)?;
         let mean = r.iter().sum::<f64>() / r.len() as f64;
         let lambda = (-mean).exp();
-        let (_, power) = scale_parameter(kind, &values);
-        values[scale_index] *= lambda.powf(power);
+        values[scale_index] *= lambda.powf(scale_power(kind, &values));
         if kind == ModelKind::JohnsonCook && free.iter().any(|&(j, _)| j == 0) {
             values[0] *= lambda;
         }
@@ -1024,7 +1023,7 @@ fn build_report(
             eqps_test: *eqps_test,
             eqps_model,
             damage_at_end,
-            log_residual: residual.unwrap_or(UNDEFINED_PENALTY),
+            log_residual: residual,
         });
     }
     Ok(FitReport {
@@ -1185,7 +1184,7 @@ mod tests {
         // Model strain and residual agree.
         for p in &r.points {
             assert_relative_eq!(
-                p.log_residual,
+                p.log_residual.unwrap(),
                 (p.eqps_model.unwrap() / p.eqps_test).ln(),
                 epsilon = 1e-12
             );

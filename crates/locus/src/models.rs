@@ -578,8 +578,10 @@ pub enum Locus {
 
 impl Locus {
     /// Builds a model from a name→value list. Every parameter of the model must be given
-    /// exactly once, except the Hosford–Coulomb `n`, which defaults to
-    /// [`HosfordCoulomb::DEFAULT_N`] = 0.1. Unknown names are errors.
+    /// exactly once, except two with conventional values that default when absent: the
+    /// Hosford–Coulomb `n` ([`HosfordCoulomb::DEFAULT_N`] = 0.1) and the modified
+    /// Mohr–Coulomb `c_theta_t` (1, Bai & Wierzbicki 2010's usual choice). Unknown or
+    /// repeated names are errors.
     ///
     /// ```
     /// use ductrace_locus::{FractureLocus, Locus, ModelKind};
@@ -598,8 +600,15 @@ impl Locus {
             .into_iter()
             .map(|(s, v)| (s.as_ref().to_string(), v))
             .collect();
-        if kind == ModelKind::HosfordCoulomb && !given.iter().any(|(s, _)| s == "n") {
-            given.push(("n".to_string(), HosfordCoulomb::DEFAULT_N));
+        let default = match kind {
+            ModelKind::HosfordCoulomb => Some(("n", HosfordCoulomb::DEFAULT_N)),
+            ModelKind::ModifiedMohrCoulomb => Some(("c_theta_t", 1.0)),
+            ModelKind::JohnsonCook => None,
+        };
+        if let Some((name, value)) = default
+            && !given.iter().any(|(s, _)| s == name)
+        {
+            given.push((name.to_string(), value));
         }
         let values = collect_values(kind.id(), kind.parameter_names(), given)?;
         Locus::from_values(kind, &values)
