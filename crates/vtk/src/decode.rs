@@ -357,7 +357,7 @@ pub(crate) fn decode(
             decode_binary(&stream, layout, req, ctx, scratch, sink)
         }
         Payload::AppendedRaw(off) => {
-            let bytes = file.get(*off..).ok_or_else(|| ctx.truncated(*off, 1, 0))?;
+            let bytes = file.get(*off..).unwrap_or(&[]);
             let stream = Stream::Raw {
                 bytes,
                 file_offset: *off,
@@ -365,7 +365,7 @@ pub(crate) fn decode(
             decode_binary(&stream, layout, req, ctx, scratch, sink)
         }
         Payload::AppendedBase64(off) => {
-            let text = file.get(*off..).ok_or_else(|| ctx.truncated(*off, 1, 0))?;
+            let text = file.get(*off..).unwrap_or(&[]);
             let stream = Stream::B64 {
                 text,
                 file_offset: *off,
@@ -487,7 +487,7 @@ impl<'a> Stream<'a> {
             },
             Stream::B64 { text, file_offset } => {
                 let hc = h.div_ceil(3) * 4;
-                let two_runs = h % 3 == 0 || (hc >= 1 && text.get(hc - 1) == Some(&b'='));
+                let two_runs = h.is_multiple_of(3) || (hc >= 1 && text.get(hc - 1) == Some(&b'='));
                 if two_runs {
                     DataView::B64 {
                         text: text.get(hc..).unwrap_or(&[]),

@@ -157,7 +157,7 @@ pub enum Error {
         path: PathBuf,
         /// The parser's error (names a line or byte offset).
         #[source]
-        source: crate::legacy::LegacyError,
+        source: Box<crate::legacy::LegacyError>,
     },
     /// An increment index beyond the series.
     #[error("{}: increment {index} does not exist; the series has {count}", path.display())]

@@ -122,7 +122,7 @@ impl Loaded {
             Kind::Legacy => {
                 let lf = LegacyFile::scan(bytes.get()).map_err(|source| Error::Legacy {
                     path: path.to_path_buf(),
-                    source,
+                    source: Box::new(source),
                 })?;
                 self.files.push(OpenFile {
                     path: path.to_path_buf(),
@@ -411,13 +411,32 @@ fn xml_piece_into_mesh(
             n_conn,
             &format!("array 'connectivity' of piece {index}"),
             scratch,
-        )?;
+        )
+        .map_err(|e| match e {
+            Error::SizeMismatch { found, .. } => Error::BadCells {
+                path: path.to_path_buf(),
+                piece: index,
+                detail: format!(
+                    "the offsets end at {n_conn} but the connectivity holds {}",
+                    if layout_is_binary(&ca.payload) {
+                        format!("{} bytes", found)
+                    } else {
+                        format!("{found} values")
+                    }
+                ),
+            },
+            other => other,
+        })?;
         let mut offsets = Vec::with_capacity(nc + 1);
         offsets.push(0);
         offsets.extend_from_slice(&ends);
         (conn, offsets, types)
     };
     mesh.push_piece(path, index, points, &conn, &offsets, &types)
+}
+
+fn layout_is_binary(p: &Payload) -> bool {
+    !matches!(p, Payload::Ascii(_))
 }
 
 fn piece_points(
@@ -560,9 +579,9 @@ fn build_mesh(loaded: &Loaded, scratch: &mut Vec<u8>) -> Result<Mesh> {
                 &mut mesh,
             )?,
             FileData::Legacy(l) => {
-                let wrap = |source| Error::Legacy {
+                let wrap = |source: crate::legacy::LegacyError| Error::Legacy {
                     path: file.path.clone(),
-                    source,
+                    source: Box::new(source),
                 };
                 let pts = l.points(bytes).map_err(wrap)?;
                 let c = l.cells(bytes).map_err(wrap)?;
@@ -899,7 +918,9 @@ fn discover_folder(dir: &Path) -> Result<(Discovery, Entries)> {
     }
     // numbered files; .pvtu files take precedence over the .vtu pieces they list
     let has_pvtu = files.iter().any(|p| kind_of(p) == Kind::Pvtu);
-    let mut groups: Vec<(String, String, Vec<(u64, PathBuf)>)> = Vec::new();
+    // (stem, extension, numbered files)
+    type Group = (String, String, Vec<(u64, PathBuf)>);
+    let mut groups: Vec<Group> = Vec::new();
     for p in &files {
         let k = kind_of(p);
         if has_pvtu && k != Kind::Pvtu {
@@ -989,7 +1010,7 @@ impl std::fmt::Debug for Increment<'_> {
     }
 }
 
-impl Increment<'_> {
+impl<'s> Increment<'s> {
     /// Position in the series.
     pub fn index(&self) -> usize {
         self.index
@@ -1002,7 +1023,12 @@ impl Increment<'_> {
     /// Decodes array `name` at `location` as f64, interleaved components, into `out` (cleared
     /// and reused). Checks the data length against tuples × components, with the tuple count
     /// of the reference mesh.
-    pub fn read(&self, name: &str, location: Location, out: &mut Vec<f64>) -> Result<&FieldInfo> {
+    pub fn read(
+        &self,
+        name: &str,
+        location: Location,
+        out: &mut Vec<f64>,
+    ) -> Result<&'s FieldInfo> {
         let info = self.series.field(name, Some(location))?;
         let n = self.count(location);
         self.read_range(info, 0..n, out)?;
@@ -1017,7 +1043,7 @@ impl Increment<'_> {
         location: Location,
         range: Range<usize>,
         out: &mut Vec<f64>,
-    ) -> Result<&FieldInfo> {
+    ) -> Result<&'s FieldInfo> {
         let info = self.series.field(name, Some(location))?;
         let n = self.count(location);
         if range.start > range.end || range.end > n {
@@ -1052,7 +1078,7 @@ impl Increment<'_> {
                 FileData::Legacy(l) => {
                     out.extend(l.points(bytes).map_err(|source| Error::Legacy {
                         path: file.path.clone(),
-                        source,
+                        source: Box::new(source),
                     })?)
                 }
             }
@@ -1169,7 +1195,7 @@ impl Increment<'_> {
                     l.read(bytes, idx, &mut tmp)
                         .map_err(|source| Error::Legacy {
                             path: file.path.clone(),
-                            source,
+                            source: Box::new(source),
                         })?;
                     let s = tlo * c..thi * c;
                     let part = tmp.get(s).ok_or_else(|| Error::SizeMismatch {
@@ -1249,9 +1275,9 @@ pub(crate) fn fuzz_xml(bytes: &[u8]) -> Result<usize> {
 /// Fuzz entry: scan a legacy file from bytes and decode its mesh and arrays.
 pub(crate) fn fuzz_legacy(bytes: &[u8]) -> Result<usize> {
     let path = Path::new("<fuzz>.vtk");
-    let wrap = |source| Error::Legacy {
+    let wrap = |source: crate::legacy::LegacyError| Error::Legacy {
         path: path.to_path_buf(),
-        source,
+        source: Box::new(source),
     };
     let l = LegacyFile::scan(bytes).map_err(wrap)?;
     let pts = l.points(bytes).map_err(wrap)?;

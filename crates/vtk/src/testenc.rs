@@ -309,7 +309,7 @@ pub fn vtu(enc: &Enc, pieces: &[Piece], time: Option<f64>) -> Vec<u8> {
             }
             Format::InlineOneRun => {
                 let (h, d) = binary(enc, &raw);
-                let _ = writeln!(xml, ">\n{}{}\n</DataArray>", b64(&[h, d].concat()), "");
+                let _ = writeln!(xml, ">\n{}\n</DataArray>", b64(&[h, d].concat()));
             }
             Format::InlineTwoRuns => {
                 let (h, d) = binary(enc, &raw);

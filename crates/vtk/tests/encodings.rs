@@ -2,6 +2,8 @@
 //! (`testenc`, which follows VTK's file format documentation) and by our writer; bit-exact
 //! comparison with the values encoded. Also pieces, `.pvtu`, `.pvd`, folders and tuple ranges.
 
+#![allow(clippy::unwrap_used)] // test helpers unwrap like the tests do
+
 use std::path::{Path, PathBuf};
 
 use ductrace_vtk::testenc::{self, Arr, Comp, Enc, Format, Piece};
