@@ -579,3 +579,98 @@ fn eqps_without_number_of_components_has_one() {
     let s = Series::open(&path).unwrap();
     assert_eq!(s.field("eqps", Some(Location::Cell)).unwrap().components, 1);
 }
+
+fn bad_dir() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("../../fixtures/vtk/bad")
+}
+
+/// Open a path and decode everything of every increment; the first error's message, if any.
+fn first_error(path: &Path) -> Option<String> {
+    let s = match Series::open(path) {
+        Ok(s) => s,
+        Err(e) => return Some(e.to_string()),
+    };
+    let mut buf = Vec::new();
+    let mut pts = Vec::new();
+    for k in 0..s.increments().len() {
+        let step = match s.increment(k) {
+            Ok(step) => step,
+            Err(e) => return Some(e.to_string()),
+        };
+        if let Err(e) = step.points(&mut pts) {
+            return Some(e.to_string());
+        }
+        for f in s.fields() {
+            if let Err(e) = step.read(&f.name, f.location, &mut buf) {
+                return Some(e.to_string());
+            }
+        }
+    }
+    None
+}
+
+/// Every file of fixtures/vtk/bad (made by make_bad.py from the VTK-written good files) fails with a
+/// one-line message that names the file and carries the substance listed in bad/index.json; files with
+/// NaN/Inf read, and `find_nonfinite` reports the count and the first location that make_bad.py wrote.
+#[test]
+fn bad_fixtures_fail_with_the_expected_substance() {
+    let idx = load_json(&bad_dir().join("index.json"));
+    let cases = idx["cases"].as_array().unwrap();
+    assert!(cases.len() >= 35, "only {} bad cases", cases.len());
+    let mut report = Vec::new();
+    for c in cases {
+        let file = c["file"].as_str().unwrap();
+        let path = bad_dir().join(file);
+        if c["stage"] == "nonfinite" {
+            let e = &c["expect"];
+            let (name, location) = (e[0].as_str().unwrap(), loc(&e[1]));
+            let want = (
+                e[2].as_u64().unwrap() as usize,
+                e[3].as_u64().unwrap() as usize,
+                e[4].as_u64().unwrap() as usize,
+            );
+            let mut buf = Vec::new();
+            let got = Series::open(&path)
+                .and_then(|s| {
+                    let step = s.increment(0)?;
+                    let comps = step.read(name, location, &mut buf)?.components;
+                    Ok(ductrace_vtk::find_nonfinite(&buf, comps))
+                })
+                .map(|n| n.map(|n| (n.count, n.first_tuple, n.first_component)));
+            match got {
+                Ok(Some(g)) if g == want => {}
+                other => report.push(format!("{file}: non-finite {other:?}, expected {want:?}")),
+            }
+            continue;
+        }
+        let Some(msg) = first_error(&path) else {
+            report.push(format!("{file}: no error"));
+            continue;
+        };
+        let lower = msg.to_lowercase();
+        if msg.lines().count() != 1 {
+            report.push(format!("{file}: message is not one line: {msg}"));
+        }
+        let base = Path::new(file).file_name().unwrap().to_string_lossy();
+        if !msg.contains(base.as_ref()) {
+            report.push(format!("{file}: message does not name the file: {msg}"));
+        }
+        for group in c["expect"].as_array().unwrap() {
+            let words: Vec<&str> = group
+                .as_array()
+                .unwrap()
+                .iter()
+                .map(|w| w.as_str().unwrap())
+                .collect();
+            if !words.iter().any(|w| lower.contains(w)) {
+                report.push(format!("{file}: message lacks any of {words:?}: {msg}"));
+            }
+        }
+    }
+    assert!(
+        report.is_empty(),
+        "{} problems:\n{}",
+        report.len(),
+        report.join("\n")
+    );
+}
