@@ -16,16 +16,26 @@ fn state_json(components: &str, extra: &[&str]) -> serde_json::Value {
         .args(extra)
         .output()
         .unwrap();
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     serde_json::from_slice(&out.stdout).unwrap()
 }
 
 /// Checks η, θ̄, μ of one state printed by `ductrace state --format json`.
 fn check(components: &str, eta: f64, theta: f64, mu: f64) {
     let v = state_json(components, &[]);
-    let get = |k: &str| v[k].as_f64().unwrap_or_else(|| panic!("{components}: {k} = {}", v[k]));
+    let get = |k: &str| {
+        v[k].as_f64()
+            .unwrap_or_else(|| panic!("{components}: {k} = {}", v[k]))
+    };
     assert!((get("triaxiality") - eta).abs() < 1e-9, "{components}: η");
-    assert!((get("lode_angle_param") - theta).abs() < 1e-7, "{components}: θ̄");
+    assert!(
+        (get("lode_angle_param") - theta).abs() < 1e-7,
+        "{components}: θ̄"
+    );
     assert!((get("lode_param") - mu).abs() < 1e-7, "{components}: μ");
 }
 
@@ -72,7 +82,11 @@ fn other_orders_and_nine_components() {
     let b = state_json("10,20,30,5,6,4", &["--order", "xx,yy,zz,yz,xz,xy"]);
     let c = state_json("10,4,6,4,20,5,6,5,30", &[]);
     for k in ["sigma_vm", "triaxiality", "lode_angle_param"] {
-        let (x, y, z) = (a[k].as_f64().unwrap(), b[k].as_f64().unwrap(), c[k].as_f64().unwrap());
+        let (x, y, z) = (
+            a[k].as_f64().unwrap(),
+            b[k].as_f64().unwrap(),
+            c[k].as_f64().unwrap(),
+        );
         assert!((x - y).abs() < 1e-12 && (x - z).abs() < 1e-12, "{k}");
     }
 }
@@ -83,7 +97,9 @@ fn usage_and_data_errors_have_codes_and_one_line_messages() {
         .args(["state", "1,2,3"])
         .assert()
         .code(2)
-        .stderr(predicate::str::contains("expected 6 or 9 stress components, got 3"));
+        .stderr(predicate::str::contains(
+            "expected 6 or 9 stress components, got 3",
+        ));
     ductrace()
         .args(["state", "1,2,x,0,0,0"])
         .assert()
@@ -100,9 +116,15 @@ fn usage_and_data_errors_have_codes_and_one_line_messages() {
         .code(2)
         .stderr(predicate::str::contains("--order"));
     ductrace().args(["nonsense"]).assert().code(2);
-    let out = ductrace().args(["state", "nan,0,0,0,0,0"]).output().unwrap();
+    let out = ductrace()
+        .args(["state", "nan,0,0,0,0,0"])
+        .output()
+        .unwrap();
     assert_eq!(out.status.code(), Some(1));
-    assert_eq!(String::from_utf8_lossy(&out.stderr).trim().lines().count(), 1);
+    assert_eq!(
+        String::from_utf8_lossy(&out.stderr).trim().lines().count(),
+        1
+    );
 }
 
 #[test]
@@ -123,7 +145,9 @@ fn csv_and_text_formats() {
         .args(["state", "300,0,0,0,0,0"])
         .assert()
         .success()
-        .stdout(predicate::str::contains("triaxiality η").and(predicate::str::contains("0.333333")));
+        .stdout(
+            predicate::str::contains("triaxiality η").and(predicate::str::contains("0.333333")),
+        );
 }
 
 #[test]

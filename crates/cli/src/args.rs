@@ -44,8 +44,18 @@ pub enum Command {
     #[command(after_help = STATE_HELP)]
     State(StateArgs),
 
+    /// Catalogue of a result: increments, mesh, fields, detected roles.
+    #[command(after_help = PROBE_HELP)]
+    Probe(ProbeArgs),
+
+    /// Stress-state history at one point or cell, and its averages up to the stop.
+    #[command(after_help = HISTORY_HELP)]
+    History(HistoryArgs),
+
     /// Print a shell completion script.
-    #[command(after_help = "Example:\n  ductrace completions bash > ~/.local/share/bash-completion/completions/ductrace")]
+    #[command(
+        after_help = "Example:\n  ductrace completions bash > ~/.local/share/bash-completion/completions/ductrace"
+    )]
     Completions(CompletionsArgs),
 }
 
@@ -59,6 +69,144 @@ Measures: sigma_h = tr(s)/3 (tension positive); sigma_vm = sqrt(3 J2); triaxiali
 (Bai & Wierzbicki 2008); lode_param = (2 s2 - s1 - s3)/(s1 - s3) (Lode 1926); principal s1 >= s2 >= s3.
 Shape measures are undefined (null in JSON) for zero or purely hydrostatic stress.
 No unit conversion: stresses come out in the input's unit.";
+
+const PROBE_HELP: &str =
+    "RESULT is a .vtu, .pvtu, .pvd or legacy .vtk file, or a folder (its single .pvd, \
+or numbered files such as run_0001.vtu, run_0002.vtu sorted by number).
+
+Examples:
+  ductrace probe results/notched_r4.pvd
+  ductrace probe results/ --format json";
+
+const HISTORY_HELP: &str = "Selectors (--at):
+  cell:ID, point:ID    0-based ids as stored (pieces of a .pvtu are numbered one after the other)
+  near:X,Y,Z           the point (point data) or the cell whose centroid (cell data) is nearest,
+                       in the reference configuration (the first increment's points)
+  max:FIELD            where FIELD (a scalar array, or eqps, triaxiality, sigma_vm) is largest at
+                       the stop; ties go to the lowest id; runners-up are reported
+For blunt notches the usual critical point is the notch centre (near: its coordinates). For sharp
+notches and grooved plates the plastic-strain maximum sits at the notch surface instead, so
+max:eqps may not land on the centre: look at the runners-up and compare with near:.
+
+Stops (--until): increment:N, time:T, eqps:E, gauge:U (default: the last increment). A stop between
+two increments interpolates linearly; the last segment of the averages uses that fraction.
+Gauges (--gauge): X1,Y1,Z1:X2,Y2,Z2 (change of distance between two material points) or X,Y,Z/AXIS
+(that displacement component of one point); points are the nearest mesh points.
+
+Averages: triaxiality_avg = (1/eps_f) integral of eta d(eqps), lode_angle_param_avg likewise, by the
+trapezoid rule over increments (Bao & Wierzbicki 2004); increments without plastic increment add
+nothing.
+
+Examples:
+  ductrace history bar.pvd --at near:0,0,0 --gauge 0,-12.5,0:0,12.5,0 --until gauge:0.83
+  ductrace history bar.pvd --at max:eqps --until increment:40 --format csv -o history.csv
+  ductrace history plate/ --at cell:1234 --band 8 --format json";
+
+/// The options that name arrays and conventions, shared by every command that reads results.
+#[derive(Debug, Args, Clone, Default)]
+pub struct FieldArgs {
+    /// Stress array (6 or 9 components); detected by name when omitted.
+    #[arg(long, value_name = "NAME")]
+    pub stress: Option<String>,
+
+    /// Order of a 6-component stress, e.g. xx,yy,zz,yz,xz,xy; default: from the component
+    /// names, else VTK's XX,YY,ZZ,XY,YZ,XZ.
+    #[arg(long, value_name = "ORDER")]
+    pub stress_order: Option<String>,
+
+    /// Equivalent plastic strain array (scalar).
+    #[arg(long, value_name = "NAME")]
+    pub eqps: Option<String>,
+
+    /// Plastic strain tensor to accumulate the equivalent plastic strain from.
+    #[arg(long, value_name = "NAME")]
+    pub plastic_strain: Option<String>,
+
+    /// Displacement array (point data, 3 components).
+    #[arg(long, value_name = "NAME")]
+    pub displacement: Option<String>,
+
+    /// Use point or cell data when the stress exists at both.
+    #[arg(long, value_enum, value_name = "WHERE")]
+    pub location: Option<LocationArg>,
+
+    /// The plastic strain tensor stores engineering shears (gamma = 2 epsilon).
+    #[arg(long)]
+    pub engineering_shear: bool,
+
+    /// The files carry deformed coordinates: subtract the displacement for the reference.
+    #[arg(long)]
+    pub deformed_points: bool,
+
+    /// Skip non-finite stress and eqps values in full-field scans instead of refusing them.
+    #[arg(long)]
+    pub allow_nonfinite: bool,
+}
+
+/// Point or cell data.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum LocationArg {
+    /// Point (node) data.
+    Point,
+    /// Cell (element) data.
+    Cell,
+}
+
+/// Arguments of `ductrace probe`.
+#[derive(Debug, Args)]
+pub struct ProbeArgs {
+    /// Result file or folder.
+    #[arg(value_name = "RESULT")]
+    pub result: PathBuf,
+
+    /// Output format (text or json).
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+
+    /// Write the output to FILE (atomically) instead of stdout.
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    pub output: Option<PathBuf>,
+
+    /// Array names and conventions.
+    #[command(flatten)]
+    pub fields: FieldArgs,
+}
+
+/// Arguments of `ductrace history`.
+#[derive(Debug, Args)]
+pub struct HistoryArgs {
+    /// Result file or folder.
+    #[arg(value_name = "RESULT")]
+    pub result: PathBuf,
+
+    /// Which point or cell: cell:ID, point:ID, near:X,Y,Z or max:FIELD.
+    #[arg(long, value_name = "SELECTOR")]
+    pub at: String,
+
+    /// Where the history ends: increment:N, time:T, eqps:E or gauge:U.
+    #[arg(long, value_name = "STOP")]
+    pub until: Option<String>,
+
+    /// Gauge: X1,Y1,Z1:X2,Y2,Z2 or X,Y,Z/AXIS.
+    #[arg(long, value_name = "GAUGE", allow_hyphen_values = true)]
+    pub gauge: Option<String>,
+
+    /// Also summarise the K nearest points/cells around the chosen one (min and max).
+    #[arg(long, value_name = "K")]
+    pub band: Option<usize>,
+
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+
+    /// Write the output to FILE (atomically) instead of stdout.
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    pub output: Option<PathBuf>,
+
+    /// Array names and conventions.
+    #[command(flatten)]
+    pub fields: FieldArgs,
+}
 
 /// Arguments of `ductrace state`.
 #[derive(Debug, Args)]

@@ -81,3 +81,18 @@ impl From<ductrace_tensor::TensorError> for Failure {
         Failure::data(e.to_string())
     }
 }
+
+impl From<ductrace_vtk::Error> for Failure {
+    fn from(e: ductrace_vtk::Error) -> Failure {
+        Failure::data(e.to_string())
+    }
+}
+
+impl From<ductrace_track::TrackError> for Failure {
+    fn from(e: ductrace_track::TrackError) -> Failure {
+        match e {
+            ductrace_track::TrackError::Syntax { .. } => Failure::usage(e.to_string()),
+            other => Failure::data(other.to_string()),
+        }
+    }
+}

@@ -28,10 +28,10 @@ pub fn main() -> ExitCode {
         Err(e) => {
             // Help and version go to stdout with code 0; usage errors to stderr with 2.
             let code = if e.use_stderr() { 2 } else { 0 };
-            if let Err(print_error) = e.print() {
-                if print_error.kind() != std::io::ErrorKind::BrokenPipe {
-                    return ExitCode::from(2);
-                }
+            if let Err(print_error) = e.print()
+                && print_error.kind() != std::io::ErrorKind::BrokenPipe
+            {
+                return ExitCode::from(2);
             }
             return ExitCode::from(code);
         }

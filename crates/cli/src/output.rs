@@ -97,7 +97,7 @@ pub fn num(v: Option<f64>) -> String {
 pub fn num_text(v: Option<f64>, digits: usize) -> String {
     match v {
         None => "—".to_string(),
-        Some(x) if x == 0.0 => "0".to_string(),
+        Some(0.0) => "0".to_string(),
         Some(x) => {
             // The exponent of the value as rounded to `digits` significant digits.
             let sci = format!("{x:.prec$e}", prec = digits.saturating_sub(1));
@@ -122,13 +122,18 @@ pub fn width(s: &str) -> usize {
         .count()
 }
 
-/// Renders rows as an aligned text table: first column left-aligned, the others right-aligned.
+/// Renders rows as an aligned text table: columns whose cells are all numbers (or empty,
+/// or `—`) are right-aligned, the others left-aligned.
 pub fn table(header: &[&str], rows: &[Vec<String>]) -> String {
     let n = header.len();
     let mut widths: Vec<usize> = header.iter().map(|h| width(h)).collect();
+    let mut numeric = vec![true; n];
     for row in rows {
-        for (w, cell) in widths.iter_mut().zip(row) {
-            *w = (*w).max(width(cell));
+        for (i, cell) in row.iter().enumerate().take(n) {
+            widths[i] = widths[i].max(width(cell));
+            if !(cell.is_empty() || cell == "—" || cell.parse::<f64>().is_ok()) {
+                numeric[i] = false;
+            }
         }
     }
     let mut out = String::new();
@@ -138,12 +143,12 @@ pub fn table(header: &[&str], rows: &[Vec<String>]) -> String {
             if i > 0 {
                 out.push_str("  ");
             }
-            if i == 0 {
-                out.push_str(cell);
+            if numeric[i] {
                 out.push_str(&" ".repeat(pad));
+                out.push_str(cell);
             } else {
-                out.push_str(&" ".repeat(pad));
                 out.push_str(cell);
+                out.push_str(&" ".repeat(pad));
             }
         }
         while out.ends_with(' ') {
@@ -201,6 +206,8 @@ mod tests {
         assert_eq!(num_text(None, 6), "—");
         let t = table(&["a", "bb"], &[vec!["x".into(), "1".into()]]);
         assert_eq!(t, "a  bb\nx   1\n");
+        let t = table(&["name", "v"], &[vec!["long".into(), "x".into()]]);
+        assert_eq!(t, "name  v\nlong  x\n");
         assert_eq!(csv_field("a,b"), "\"a,b\"");
     }
 }

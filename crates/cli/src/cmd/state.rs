@@ -31,8 +31,9 @@ pub fn parse_components(text: &str) -> Result<Vec<f64>, Failure> {
     text.split(',')
         .map(|t| {
             let t = t.trim();
-            t.parse::<f64>()
-                .map_err(|_| Failure::usage(format!("invalid stress component {t:?}: not a number")))
+            t.parse::<f64>().map_err(|_| {
+                Failure::usage(format!("invalid stress component {t:?}: not a number"))
+            })
         })
         .collect()
 }
@@ -91,7 +92,10 @@ pub fn run(args: &StateArgs) -> Result<(), Failure> {
                 vec!["hydrostatic stress σ_h".to_string(), d(Some(rec.sigma_h))],
                 vec!["von Mises stress σ_vm".to_string(), d(Some(rec.sigma_vm))],
                 vec!["triaxiality η".to_string(), d(rec.triaxiality)],
-                vec!["Lode angle parameter θ̄".to_string(), d(rec.lode_angle_param)],
+                vec![
+                    "Lode angle parameter θ̄".to_string(),
+                    d(rec.lode_angle_param),
+                ],
                 vec!["Lode parameter μ".to_string(), d(rec.lode_param)],
                 vec!["ξ = cos 3θ".to_string(), d(rec.xi)],
             ];
