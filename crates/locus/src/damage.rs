@@ -495,7 +495,9 @@ pub fn update_cells<L: FractureLocus + ?Sized>(
             let phi_old = cell.integral;
             let phi_new = phi_old + de * 0.5 * (cell.inverse_strain + inv_new);
             cell.integral = phi_new;
-            if cell.crossing < 0.0 {
+            // D = Φ^m crosses 1 exactly where Φ does (m > 0): test Φ, raise to m only
+            // in the crossing increment.
+            if cell.crossing < 0.0 && phi_old < 1.0 && phi_new >= 1.0 {
                 let (d_old, d_new) = match rule {
                     DamageRule::Linear => (phi_old, phi_new),
                     DamageRule::PowerLaw { exponent } => {

@@ -369,6 +369,13 @@ pub struct FitReport {
     pub starts: usize,
 }
 
+impl FitReport {
+    /// The parameter called `name`, if the model has it.
+    pub fn parameter(&self, name: &str) -> Option<&FittedParameter> {
+        self.parameters.iter().find(|p| p.name == name)
+    }
+}
+
 // ---------------------------------------------------------------------------------------
 // Prepared data
 // ---------------------------------------------------------------------------------------
@@ -864,18 +871,20 @@ fn run_fit(
         return Err(LocusError::NoValidStart { model });
     }
     let starts = runs.len();
-    let best_of = |only_converged: bool| {
+    // Preference: converged and defined everywhere, then defined everywhere, then any;
+    // the least sum of squares within the first non-empty class.
+    let best_of = |keep: &dyn Fn(&Run) -> bool| {
         runs.iter()
-            .filter(|r| !only_converged || r.converged)
+            .filter(|r| keep(r))
             .min_by(|a, b| a.sum_of_squares.total_cmp(&b.sum_of_squares))
     };
-    let (best, converged) = match best_of(true) {
-        Some(b) => (b, true),
-        None => match best_of(false) {
-            Some(b) => (b, false),
-            None => return Err(LocusError::NoValidStart { model }),
-        },
+    let Some(best) = best_of(&|r| r.converged && r.undefined == 0)
+        .or_else(|| best_of(&|r| r.undefined == 0))
+        .or_else(|| best_of(&|_| true))
+    else {
+        return Err(LocusError::NoValidStart { model });
     };
+    let converged = best.converged;
     let report = build_report(
         spec,
         data,

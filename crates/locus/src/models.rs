@@ -403,8 +403,13 @@ impl FractureLocus for ModifiedMohrCoulomb {
     }
 
     fn fracture_strain(&self, eta: f64, theta_bar: f64) -> Option<f64> {
-        let b1 = self.first_bracket(theta_bar)?;
-        let b2 = self.second_bracket(eta, theta_bar)?;
+        if !lode_in_range(theta_bar) || !eta.is_finite() {
+            return None;
+        }
+        let (sin, cos) = (PI * theta_bar / 6.0).sin_cos();
+        let c_s = self.c_theta_s;
+        let b1 = c_s + MMC_K * (self.c_theta_ax(theta_bar) - c_s) * (1.0 / cos - 1.0);
+        let b2 = ((1.0 + self.c1 * self.c1) / 3.0).sqrt() * cos + self.c1 * (eta + sin / 3.0);
         let p = self.a / self.c2 * b1 * b2;
         positive(p)?;
         positive((-p.ln() / self.n).exp())
@@ -456,9 +461,13 @@ struct HcTerms {
 }
 
 fn hc_terms(theta_bar: f64) -> HcTerms {
-    let f1 = 2.0 / 3.0 * (PI * (1.0 - theta_bar) / 6.0).cos();
-    let f2 = 2.0 / 3.0 * (PI * (3.0 + theta_bar) / 6.0).cos();
-    let f3 = -2.0 / 3.0 * (PI * (1.0 + theta_bar) / 6.0).cos();
+    // With φ = π θ̄/6: cos(π(1 − θ̄)/6) = cos(π/6 − φ), cos(π(3 + θ̄)/6) = −sin φ,
+    // cos(π(1 + θ̄)/6) = cos(π/6 + φ); one sin_cos gives all three.
+    let (sin, cos) = (PI * theta_bar / 6.0).sin_cos();
+    let (c6, s6) = (0.866_025_403_784_438_6, 0.5); // cos(π/6), sin(π/6)
+    let f1 = 2.0 / 3.0 * (c6 * cos + s6 * sin);
+    let f2 = -2.0 / 3.0 * sin;
+    let f3 = -2.0 / 3.0 * (c6 * cos - s6 * sin);
     // The differences are ≥ 0 for θ̄ ∈ [−1, 1]; clamp round-off so powers stay real.
     HcTerms {
         d: [(f1 - f2).max(0.0), (f2 - f3).max(0.0), (f1 - f3).max(0.0)],
@@ -491,9 +500,12 @@ impl HosfordCoulomb {
         if !lode_in_range(theta_bar) {
             return None;
         }
-        let t = hc_terms(theta_bar);
+        Some(self.hosford_of(&hc_terms(theta_bar)))
+    }
+
+    fn hosford_of(&self, t: &HcTerms) -> f64 {
         let s: f64 = t.d.iter().map(|d| d.powf(self.a)).sum();
-        Some((s / 2.0).powf(1.0 / self.a))
+        (s / 2.0).powf(1.0 / self.a)
     }
 
     /// ln ε_f and ∂ ln ε_f/∂(a, b, c, n) written into `gradient[..4]`. With G the Hosford
@@ -543,12 +555,11 @@ impl FractureLocus for HosfordCoulomb {
     }
 
     fn fracture_strain(&self, eta: f64, theta_bar: f64) -> Option<f64> {
-        if !eta.is_finite() {
+        if !eta.is_finite() || !lode_in_range(theta_bar) {
             return None;
         }
-        let g = self.hosford_term(theta_bar)?;
-        let h = 2.0 * eta + hc_terms(theta_bar).f13;
-        let q = g + self.c * h;
+        let t = hc_terms(theta_bar);
+        let q = self.hosford_of(&t) + self.c * (2.0 * eta + t.f13);
         positive(q)?;
         positive(self.b * ((self.c.ln_1p() - q.ln()) / self.n).exp())
     }

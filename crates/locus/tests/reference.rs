@@ -56,7 +56,7 @@ fn fits_agree_with_scipy_curve_fit() {
     for case in cases {
         let report = fit_average(&FitSpec::new(case.model), &case.points).unwrap();
         for (name, value, se) in &case.params {
-            let p = report.parameters.iter().find(|p| p.name == name).unwrap();
+            let p = report.parameter(name).unwrap();
             assert!(
                 (p.value - value).abs() <= 1e-6 * value.abs(),
                 "{} {name}: {} vs scipy {value}",
