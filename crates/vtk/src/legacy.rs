@@ -15,8 +15,14 @@
 //! - `POINT_DATA n` / `CELL_DATA n` sections with `SCALARS name type [ncomp]` (+ `LOOKUP_TABLE` line),
 //!   `COLOR_SCALARS name n`, `VECTORS`, `NORMALS`, `TEXTURE_COORDINATES name dim type`, `TENSORS` (9 components,
 //!   row-major), `TENSORS6` (6 components, XX YY ZZ XY YZ XZ) and `FIELD name n` arrays (`name ncomp ntuples type`);
-//! - `METADATA` blocks (`INFORMATION`, `COMPONENT_NAMES`) up to the next blank line, standalone `LOOKUP_TABLE name n`
+//! - `METADATA` blocks up to the next blank line: `COMPONENT_NAMES` become the preceding array's
+//!   [`LegacyArrayInfo::component_names`], `INFORMATION` entries are skipped; standalone `LOOKUP_TABLE name n`
 //!   tables and `GLOBAL_IDS` / `PEDIGREE_IDS` sections are skipped.
+//! - Cell lists: the 5.x layout is recognised by the `OFFSETS` keyword after `CELLS` (any version), the classic
+//!   layout otherwise; offsets must start at 0, not decrease and end at the connectivity length; point ids must
+//!   be below the number of points; `CELL_TYPES` must have one entry (0..=255) per cell. Unknown cell type ids
+//!   are the caller's business.
+//! - A `FIELD` array inside POINT_DATA / CELL_DATA must have that section's number of tuples.
 //!
 //! BINARY sections start after the newline that ends their keyword line and hold raw big-endian values; a
 //! newline (or any whitespace) follows. ASCII sections are whitespace-separated tokens. Type names are matched
