@@ -52,6 +52,14 @@ pub enum Command {
     #[command(after_help = HISTORY_HELP)]
     History(HistoryArgs),
 
+    /// The campaign table: one calibration point per specimen of a study.
+    #[command(after_help = TABLE_HELP)]
+    Table(TableArgs),
+
+    /// Run the bundled, invented demonstration campaign end to end.
+    #[command(after_help = DEMO_HELP)]
+    Demo(DemoArgs),
+
     /// Print a shell completion script.
     #[command(
         after_help = "Example:\n  ductrace completions bash > ~/.local/share/bash-completion/completions/ductrace"
@@ -101,6 +109,29 @@ Examples:
   ductrace history bar.pvd --at near:0,0,0 --gauge 0,-12.5,0:0,12.5,0 --until gauge:0.83
   ductrace history bar.pvd --at max:eqps --until increment:40 --format csv -o history.csv
   ductrace history plate/ --at cell:1234 --band 8 --format json";
+
+const TABLE_HELP: &str =
+    "STUDY is a TOML file naming the material and, per specimen, the result, the \
+critical-point selector, the gauge and the fracture instant from the test (see docs/STUDY.md).
+
+Columns: specimen, location, id, eqps_f, triaxiality_avg, lode_angle_param_avg, triaxiality_f,
+lode_angle_param_f, stop_increment, increments_integrated, bridgman (initial notch-centre
+triaxiality by Bridgman's formula, where the notch is given), eps_f_area (fracture strain from the
+measured sizes: 2 ln(d0/df) for round bars, (2/sqrt 3) ln(t0/tf) for plates), then kind, gauge_f.
+A specimen that fails is reported on stderr (and in the output) while the others are still
+written; the exit code is then 1.
+
+Examples:
+  ductrace table study.toml
+  ductrace table study.toml --format csv -o table.csv";
+
+const DEMO_HELP: &str =
+    "The demonstration campaign is INVENTED: a fictional steel, invented specimens \
+and invented test results, simulated with the open-source solver CalculiX. It shows the workflow;
+its numbers describe no real material.
+
+Example:
+  ductrace demo ./ductrace-demo";
 
 /// The options that name arrays and conventions, shared by every command that reads results.
 #[derive(Debug, Args, Clone, Default)]
@@ -206,6 +237,38 @@ pub struct HistoryArgs {
     /// Array names and conventions.
     #[command(flatten)]
     pub fields: FieldArgs,
+}
+
+/// Arguments of `ductrace table`.
+#[derive(Debug, Args)]
+pub struct TableArgs {
+    /// The study file (TOML).
+    #[arg(value_name = "STUDY")]
+    pub study: PathBuf,
+
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+
+    /// Write the output to FILE (atomically) instead of stdout.
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    pub output: Option<PathBuf>,
+}
+
+/// Arguments of `ductrace demo`.
+#[derive(Debug, Args)]
+pub struct DemoArgs {
+    /// Folder for the outputs (created; must be empty unless --force).
+    #[arg(value_name = "OUT_DIR", default_value = "ductrace-demo")]
+    pub out_dir: PathBuf,
+
+    /// Write into an existing non-empty folder.
+    #[arg(long)]
+    pub force: bool,
+
+    /// The study to run instead of the bundled one.
+    #[arg(long, value_name = "STUDY")]
+    pub study: Option<PathBuf>,
 }
 
 /// Arguments of `ductrace state`.

@@ -96,3 +96,9 @@ impl From<ductrace_track::TrackError> for Failure {
         }
     }
 }
+
+impl From<ductrace_campaign::StudyError> for Failure {
+    fn from(e: ductrace_campaign::StudyError) -> Failure {
+        Failure::data(e.to_string())
+    }
+}

@@ -14,6 +14,7 @@ mod args;
 mod cmd;
 mod failure;
 mod output;
+mod progress;
 
 use std::process::ExitCode;
 

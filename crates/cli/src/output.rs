@@ -164,7 +164,6 @@ pub fn table(header: &[&str], rows: &[Vec<String>]) -> String {
 }
 
 /// Quotes a CSV field when it needs it (RFC 4180).
-#[allow(dead_code)]
 pub fn csv_field(s: &str) -> String {
     if s.contains([',', '"', '\n', '\r']) {
         format!("\"{}\"", s.replace('"', "\"\""))

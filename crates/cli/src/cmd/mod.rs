@@ -1,9 +1,11 @@
 //! The commands: each turns its arguments into a plan, runs it, and writes its output.
 
 mod completions;
+mod demo;
 mod history;
 mod probe;
 mod state;
+mod table;
 
 use ductrace_track::FieldOptions;
 use ductrace_vtk::Location;
@@ -20,6 +22,8 @@ pub fn run(cli: Cli) -> Result<(), Failure> {
         Command::Completions(a) => completions::run(&a),
         Command::Probe(a) => probe::run(&a),
         Command::History(a) => history::run(&a, cli.quiet),
+        Command::Table(a) => table::run(&a, cli.quiet),
+        Command::Demo(a) => demo::run(&a, cli.quiet),
     }
 }
 
