@@ -107,6 +107,33 @@ fn principal(s: &[f64]) -> [f64; 3] {
     e
 }
 
+/// Textbook triaxiality η and Lode angle parameter θ̄ of the states generate.py rotates and scales
+/// (FIELD-NOTES §1 table: Bao & Wierzbicki 2004, Int. J. Mech. Sci. 46:81–98; Bai & Wierzbicki 2008,
+/// Int. J. Plasticity 24:1071–1096). Axisymmetric triaxial (1, a, a) with a = 0.2:
+/// η = (1 + 2a) / (3 (1 − a)) = 7/12.
+fn textbook(state: &str) -> Option<(f64, f64)> {
+    Some(match state {
+        "uniaxial_tension" => (1.0 / 3.0, 1.0),
+        "pure_shear" => (0.0, 0.0),
+        "plane_strain_tension" => (1.0 / 3f64.sqrt(), 0.0),
+        "equibiaxial_tension" => (2.0 / 3.0, -1.0),
+        "axisymmetric_triaxial" => (7.0 / 12.0, 1.0),
+        "uniaxial_compression" => (-1.0 / 3.0, -1.0),
+        _ => return None,
+    })
+}
+
+/// Lode angle parameter θ̄ = 1 − (2/π) arccos ξ, ξ = (27/2) J3 / σ_vm³ clamped to [−1, 1]
+/// (Bai & Wierzbicki 2008), of a VTK-order tensor with von Mises stress `vm` > 0.
+fn lode_angle_parameter(s: &[f64], vm: f64) -> f64 {
+    let h = (s[0] + s[1] + s[2]) / 3.0;
+    let (a, b, c) = (s[0] - h, s[1] - h, s[2] - h);
+    let (xy, yz, xz) = (s[3], s[4], s[5]);
+    let j3 = a * (b * c - yz * yz) - xy * (xy * c - yz * xz) + xz * (xy * yz - b * xz);
+    let xi = (13.5 * j3 / vm.powi(3)).clamp(-1.0, 1.0);
+    1.0 - 2.0 / std::f64::consts::PI * xi.acos()
+}
+
 /// Check the stress measures of one 6-component stress array (hydrostatic σ_h = tr σ / 3, von Mises
 /// σ_vm = √(3 J2), triaxiality η = σ_h / σ_vm (undefined when σ_vm = 0; Bao & Wierzbicki 2004), principal
 /// stresses) computed from the values read against numpy's values in the JSON.
@@ -119,6 +146,14 @@ fn check_stress(errs: &mut Vec<String>, what: &str, vals: &[f64], st: &Value, to
     let tri = st["triaxiality"].as_array().unwrap();
     let pr = st["principal"].as_array().unwrap();
     let states = st["states"].as_array().unwrap();
+    let lode = st["lode_angle_parameter"].as_array().unwrap();
+    // Against the textbook values the data's own precision counts: Float32 data (tol 1e-6) moves ξ by ~1e-7,
+    // and θ̄ near ±1 by ~√(2 δξ).
+    let (eta_tol, lode_tol) = if tol >= 1e-6 {
+        (1e-5, 2e-3)
+    } else {
+        (1e-9, 1e-4)
+    };
     if states.len() != vals.len() / 6 || hyd.len() != vals.len() / 6 {
         errs.push(format!(
             "{what}: stress tuples differ from the expected states"
@@ -151,6 +186,22 @@ fn check_stress(errs: &mut Vec<String>, what: &str, vals: &[f64], st: &Value, to
             (a, b) => errs.push(format!(
                 "{what} tuple {k} ({state}): triaxiality {a:?}, numpy {b:?}"
             )),
+        }
+        if let Some(v_eta) = eta {
+            let l = lode_angle_parameter(s, v);
+            match lode[k].as_f64() {
+                Some(b) if (l - b).abs() <= 1e-6 => {}
+                b => errs.push(format!(
+                    "{what} tuple {k} ({state}): Lode angle parameter {l}, numpy {b:?}"
+                )),
+            }
+            match textbook(state) {
+                Some((t_eta, t_lode))
+                    if (v_eta - t_eta).abs() <= eta_tol && (l - t_lode).abs() <= lode_tol => {}
+                t => errs.push(format!(
+                    "{what} tuple {k}: (η, θ̄) = ({v_eta}, {l}), textbook {state} {t:?}"
+                )),
+            }
         }
         let p = principal(s);
         let want = f64s(&pr[k]);
