@@ -66,6 +66,21 @@ fn bench(c: &mut Criterion) {
                 black_box(buf.len())
             })
         });
+        if name == "inline_base64_f64" {
+            // the base64 engine alone over text of the same size, for comparison
+            use base64::Engine as _;
+            let raw = vec![0x5au8; CELLS * 6 * 8];
+            let text = base64::engine::general_purpose::STANDARD.encode(&raw);
+            let mut out = vec![0u8; raw.len() + 3];
+            g.bench_function("base64_engine_alone", |b| {
+                b.iter(|| {
+                    let n = base64::engine::general_purpose::STANDARD
+                        .decode_slice(text.as_bytes(), &mut out)
+                        .expect("decode");
+                    black_box(n)
+                })
+            });
+        }
         if name == "appended_zlib_f64" {
             // the decompressor alone over the same blocks, for comparison
             let raw: Vec<u8> = testenc::raw_bytes(

@@ -468,8 +468,8 @@ impl<'a> Stream<'a> {
                 let t = text
                     .get(..chars)
                     .ok_or_else(|| ctx.truncated(*file_offset, chars, text.len()))?;
-                b64_into(t, buf, ctx)?;
-                if buf.len() < n {
+                let got = b64_into(t, buf, ctx)?;
+                if got < n {
                     return Err(ctx.truncated(*file_offset, chars, text.len()));
                 }
                 buf.truncate(n);
@@ -506,15 +506,15 @@ impl<'a> Stream<'a> {
     }
 }
 
-/// Decodes base64 `text` (whitespace-free) into `out` (cleared).
-fn b64_into(text: &[u8], out: &mut Vec<u8>, ctx: Ctx<'_>) -> Result<()> {
-    out.clear();
-    out.resize(text.len().div_ceil(4) * 3, 0);
-    let n = B64
-        .decode_slice(text, out)
-        .map_err(|e| ctx.corrupt(format!("base64: {e}")))?;
-    out.truncate(n);
-    Ok(())
+/// Decodes base64 `text` (whitespace-free) into the start of `out`, growing it if needed (never
+/// shrinking or clearing it, so a reused buffer costs nothing); returns the decoded length.
+fn b64_into(text: &[u8], out: &mut Vec<u8>, ctx: Ctx<'_>) -> Result<usize> {
+    let need = text.len().div_ceil(4) * 3;
+    if out.len() < need {
+        out.resize(need, 0);
+    }
+    B64.decode_slice(text, &mut out[..need])
+        .map_err(|e| ctx.corrupt(format!("base64: {e}")))
 }
 
 impl DataView<'_> {
@@ -554,10 +554,10 @@ impl DataView<'_> {
                 let c0 = s / 3 * 4;
                 let c1 = e.div_ceil(3) * 4;
                 let t = text.get(c0..c1.min(text.len())).unwrap_or(&[]);
-                b64_into(t, buf, ctx)?;
+                let got = b64_into(t, buf, ctx)?;
                 let lo = s - s / 3 * 3;
                 let hi = lo + r.len();
-                if buf.len() < hi {
+                if got < hi {
                     return Err(ctx.truncated(file_offset + c0, c1 - c0, t.len()));
                 }
                 Ok(&buf[lo..hi])
@@ -821,4 +821,239 @@ pub(crate) fn decompress_block(comp: Compressor, src: &[u8], dst: &mut [u8]) -> 
         ));
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    //! Each decoder path on payloads built here with the reference libraries (base64, flate2,
+    //! lz4_flex, lzma-rs through `testenc`), following VTK's binary layout.
+    use super::*;
+    use crate::testenc::{self, Comp, Enc, Format};
+    use base64::engine::general_purpose::STANDARD;
+
+    fn layout(enc: &Enc) -> Layout {
+        Layout {
+            header: if enc.header64 {
+                HeaderType::U64
+            } else {
+                HeaderType::U32
+            },
+            compressor: match enc.comp {
+                Comp::None => Compressor::None,
+                Comp::Zlib => Compressor::Zlib,
+                Comp::Lz4 => Compressor::Lz4,
+                Comp::Lzma => Compressor::Lzma,
+            },
+            big_endian: enc.big_endian,
+        }
+    }
+
+    /// Encodes `values` as `ty` under `enc` into a file image and its payload.
+    fn image(enc: &Enc, ty: ScalarType, values: &[f64]) -> (Vec<u8>, Payload) {
+        let raw = testenc::raw_bytes(values, ty, enc.big_endian);
+        let (h, d) = testenc::binary(enc, &raw);
+        let pad = b"xx".to_vec(); // payload not at offset 0
+        match enc.format {
+            Format::AppendedRaw => {
+                let mut f = pad.clone();
+                f.extend(&h);
+                f.extend(&d);
+                f.extend(b"trailing");
+                (f, Payload::AppendedRaw(pad.len()))
+            }
+            Format::AppendedBase64 | Format::InlineTwoRuns => {
+                let t = format!("{}{}", STANDARD.encode(&h), STANDARD.encode(&d));
+                let mut f = pad.clone();
+                f.extend(t.as_bytes());
+                let p = if enc.format == Format::InlineTwoRuns {
+                    Payload::Inline(pad.len()..f.len())
+                } else {
+                    Payload::AppendedBase64(pad.len())
+                };
+                (f, p)
+            }
+            Format::InlineOneRun => {
+                let t = STANDARD.encode([h, d].concat());
+                let mut f = pad.clone();
+                f.extend(b"\n   ");
+                f.extend(t.as_bytes());
+                f.extend(b"\n ");
+                (f.clone(), Payload::Inline(pad.len()..f.len()))
+            }
+            Format::Ascii => {
+                let t: Vec<String> = values.iter().map(|v| format!("{v:?}")).collect();
+                let mut f = pad.clone();
+                f.extend(t.join("\n ").as_bytes());
+                (f.clone(), Payload::Ascii(pad.len()..f.len()))
+            }
+        }
+    }
+
+    fn run(enc: &Enc, ty: ScalarType, values: &[f64], elems: Range<usize>) -> Result<Vec<f64>> {
+        let (file, payload) = image(enc, ty, values);
+        let mut out = Vec::new();
+        let mut scratch = Vec::new();
+        decode(
+            &file,
+            &payload,
+            layout(enc),
+            &Request {
+                ty,
+                total: values.len(),
+                elems,
+            },
+            Ctx {
+                path: Path::new("t.vtu"),
+                what: "array 'a'",
+            },
+            &mut scratch,
+            &mut F64Sink(&mut out),
+        )?;
+        Ok(out)
+    }
+
+    fn values(n: usize) -> Vec<f64> {
+        (0..n).map(|i| (i as f64) * 0.375 - 7.0).collect()
+    }
+
+    #[test]
+    fn every_layout_full_and_partial() {
+        // 100 values of 8 bytes in blocks of 96 bytes: 9 blocks, last partial (800 % 96 = 32)
+        for enc in testenc::all_encodings(96) {
+            let v = values(100);
+            assert_eq!(
+                run(&enc, ScalarType::Float64, &v, 0..100).unwrap(),
+                v,
+                "{enc:?}"
+            );
+            assert_eq!(
+                run(&enc, ScalarType::Float64, &v, 37..61).unwrap(),
+                v[37..61],
+                "{enc:?}"
+            );
+            assert!(
+                run(&enc, ScalarType::Float64, &v, 50..50)
+                    .unwrap()
+                    .is_empty()
+            );
+        }
+    }
+
+    #[test]
+    fn last_block_full_means_zero_last_size() {
+        // 800 bytes in blocks of 100: last_blocksize written as 0 (VTK's convention)
+        for comp in [Comp::Zlib, Comp::Lz4, Comp::Lzma] {
+            let enc = Enc {
+                comp,
+                block_size: 100,
+                ..Enc::default()
+            };
+            let v = values(100);
+            assert_eq!(run(&enc, ScalarType::Float64, &v, 0..100).unwrap(), v);
+        }
+    }
+
+    #[test]
+    fn all_types_both_orders() {
+        let v: Vec<f64> = (0..50).map(|i| f64::from(i * 5 % 120)).collect();
+        for ty in [
+            ScalarType::Int8,
+            ScalarType::UInt8,
+            ScalarType::Int16,
+            ScalarType::UInt16,
+            ScalarType::Int32,
+            ScalarType::UInt32,
+            ScalarType::Int64,
+            ScalarType::UInt64,
+            ScalarType::Float32,
+            ScalarType::Float64,
+        ] {
+            for big_endian in [false, true] {
+                for format in [Format::AppendedRaw, Format::InlineOneRun] {
+                    let enc = Enc {
+                        big_endian,
+                        format,
+                        ..Enc::default()
+                    };
+                    assert_eq!(run(&enc, ty, &v, 0..50).unwrap(), v, "{ty} {enc:?}");
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn negative_integers_and_float32_rounding() {
+        let v = [-128.0, -1.0, 0.0, 127.0];
+        let enc = Enc::default();
+        assert_eq!(run(&enc, ScalarType::Int8, &v, 0..4).unwrap(), v);
+        let f = [0.1f64];
+        let got = run(&enc, ScalarType::Float32, &f, 0..1).unwrap();
+        assert_eq!(got, [f64::from(0.1f32)]);
+    }
+
+    #[test]
+    fn header_byte_count_mismatch() {
+        let enc = Enc::default();
+        let (file, payload) = image(&enc, ScalarType::Float64, &values(10));
+        let mut out = Vec::new();
+        let e = decode(
+            &file,
+            &payload,
+            layout(&enc),
+            &Request {
+                ty: ScalarType::Float64,
+                total: 11,
+                elems: 0..11,
+            },
+            Ctx {
+                path: Path::new("t.vtu"),
+                what: "array 'a'",
+            },
+            &mut Vec::new(),
+            &mut F64Sink(&mut out),
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(e.contains("expected 88, found 80"), "{e}");
+    }
+
+    #[test]
+    fn block_decompressing_to_more_than_declared_is_refused() {
+        let data = vec![7u8; 200];
+        let z = testenc::compress(Comp::Zlib, &data);
+        let mut dst = vec![0u8; 100];
+        assert!(decompress_block(Compressor::Zlib, &z, &mut dst).is_err());
+        let l = testenc::compress(Comp::Lz4, &data);
+        assert!(decompress_block(Compressor::Lz4, &l, &mut dst).is_err());
+        let x = testenc::compress(Comp::Lzma, &data);
+        assert!(decompress_block(Compressor::Lzma, &x, &mut dst).is_err());
+        let mut exact = vec![0u8; 200];
+        decompress_block(Compressor::Lzma, &x, &mut exact).unwrap();
+        assert_eq!(exact, data);
+    }
+
+    #[test]
+    fn ascii_bad_token() {
+        let file = b"1 2 x3".to_vec();
+        let mut out = Vec::new();
+        let e = decode(
+            &file,
+            &Payload::Ascii(0..file.len()),
+            layout(&Enc::default()),
+            &Request {
+                ty: ScalarType::Float64,
+                total: 3,
+                elems: 0..3,
+            },
+            Ctx {
+                path: Path::new("t.vtu"),
+                what: "array 'a'",
+            },
+            &mut Vec::new(),
+            &mut F64Sink(&mut out),
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(e.contains("'x3'") && e.contains("value 2"), "{e}");
+    }
 }

@@ -38,7 +38,10 @@
 //! Every declared size (NumberOfPoints/Cells/Tuples × components, binary headers, block tables)
 //! is checked against the file length and against limits before allocating. DOCTYPE declarations
 //! and entities are refused, XML nesting depth is limited, a non-UTF-8 header is an error. No
-//! input makes the reader panic or hang. Non-finite values are not the reader's business: see
+//! input makes the reader panic or hang. Files are memory-mapped read-only: a file truncated by
+//! another process *while* it is being read can make the process fault, as with any
+//! memory-mapped reader; results files are expected to stay put while ductrace reads them.
+//! Non-finite values are not the reader's business: see
 //! [`find_nonfinite`] for the caller's policy.
 //!
 //! # Example
@@ -268,6 +271,35 @@ pub fn find_nonfinite(data: &[f64], components: usize) -> Option<NonFinite> {
 #[doc(hidden)]
 pub fn fuzz_xml(bytes: &[u8]) -> Result<usize> {
     series::fuzz_xml(bytes)
+}
+
+/// Decodes `bytes` as the appended data of a small fixed `.vtu` header; the first byte picks the
+/// layout (raw or base64, header width, compressor, byte order, value type); for fuzzing.
+#[doc(hidden)]
+pub fn fuzz_appended(bytes: &[u8]) -> Result<usize> {
+    let Some((&sel, rest)) = bytes.split_first() else {
+        return Ok(0);
+    };
+    let header = if sel & 1 == 0 { "UInt32" } else { "UInt64" };
+    let order = if sel & 2 == 0 {
+        "LittleEndian"
+    } else {
+        "BigEndian"
+    };
+    let comp = match (sel >> 2) & 3 {
+        0 => "",
+        1 => " compressor=\"vtkZLibDataCompressor\"",
+        2 => " compressor=\"vtkLZ4DataCompressor\"",
+        _ => " compressor=\"vtkLZMADataCompressor\"",
+    };
+    let encoding = if sel & 16 == 0 { "raw" } else { "base64" };
+    let ty = ["Float64", "Float32", "Int32", "UInt8"][usize::from((sel >> 5) & 3)];
+    let mut file = format!(
+        "<VTKFile type=\"UnstructuredGrid\" version=\"1.0\" byte_order=\"{order}\" header_type=\"{header}\"{comp}><UnstructuredGrid><Piece NumberOfPoints=\"4\" NumberOfCells=\"1\"><CellData><DataArray type=\"{ty}\" Name=\"a\" NumberOfComponents=\"6\" format=\"appended\" offset=\"0\"/></CellData><Points><DataArray type=\"Float64\" NumberOfComponents=\"3\" format=\"ascii\">0 0 0 1 0 0 1 1 0 0 1 0</DataArray></Points><Cells><DataArray type=\"Int32\" Name=\"connectivity\" format=\"ascii\">0 1 2 3</DataArray><DataArray type=\"Int32\" Name=\"offsets\" format=\"ascii\">4</DataArray><DataArray type=\"UInt8\" Name=\"types\" format=\"ascii\">9</DataArray></Cells></Piece></UnstructuredGrid><AppendedData encoding=\"{encoding}\">_"
+    )
+    .into_bytes();
+    file.extend_from_slice(rest);
+    series::fuzz_xml(&file)
 }
 
 /// Parses bytes as a legacy `.vtk` file and decodes its mesh and arrays; for fuzzing.

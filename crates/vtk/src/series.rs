@@ -546,7 +546,11 @@ fn catalogue(loaded: &Loaded) -> Result<Vec<FieldInfo>> {
                     name: a.name.clone(),
                     location: legacy_loc(a.location),
                     components: a.components,
-                    component_names: Vec::new(),
+                    component_names: if a.component_names.len() == a.components {
+                        a.component_names.clone()
+                    } else {
+                        Vec::new()
+                    },
                     scalar_type: ty,
                     encoding: {
                         let (a, b) = l.version();

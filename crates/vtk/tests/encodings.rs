@@ -350,6 +350,7 @@ proptest! {
     fn garbage_never_panics(bytes in proptest::collection::vec(any::<u8>(), 0..2000)) {
         let _ = ductrace_vtk::fuzz_xml(&bytes);
         let _ = ductrace_vtk::fuzz_legacy(&bytes);
+        let _ = ductrace_vtk::fuzz_appended(&bytes);
     }
 
     #[test]

@@ -1,0 +1,8 @@
+//! Fuzz target: arbitrary bytes as a legacy `.vtk` file (scan, mesh and every array decoded).
+#![no_main]
+
+use libfuzzer_sys::fuzz_target;
+
+fuzz_target!(|data: &[u8]| {
+    let _ = ductrace_vtk::fuzz_legacy(data);
+});
