@@ -415,7 +415,11 @@ fn is_nonfinite_word(tok: &[u8]) -> bool {
         || t.eq_ignore_ascii_case(b"infinity")
 }
 
-/// One keyword line, split into tokens.
+/// Keyword lines have at most 5 tokens (`TEXTURE_COORDINATES name dim type`); more are ignored, so a garbage
+/// "line" costs no allocation beyond this.
+const MAX_LINE_TOKENS: usize = 8;
+
+/// One keyword line, split into tokens (at most [`MAX_LINE_TOKENS`]).
 struct Line<'a> {
     start: usize,
     toks: Vec<&'a str>,
@@ -475,7 +479,10 @@ impl<'a> Scanner<'a> {
             std::str::from_utf8(raw).map_err(|_| LegacyError::NotUtf8 { at: self.at(start) })?;
         Ok(Some(Line {
             start,
-            toks: text.split_ascii_whitespace().collect(),
+            toks: text
+                .split_ascii_whitespace()
+                .take(MAX_LINE_TOKENS)
+                .collect(),
         }))
     }
 
