@@ -167,7 +167,7 @@ pub enum LocusError {
 
     /// A plastic increment where the stress state is undefined at one of its ends.
     #[error(
-        "plastic strain increment {increment} at {at}: the stress state (triaxiality or lode angle parameter) is undefined"
+        "{at}: plastic strain increment {increment} > 0 where the stress state (triaxiality or lode angle parameter) is undefined"
     )]
     UndefinedStressState {
         /// Δε̄p of the increment.
@@ -178,7 +178,7 @@ pub enum LocusError {
 
     /// A plastic increment where the fracture strain is undefined or not positive.
     #[error(
-        "plastic strain increment {increment} at {at}: the fracture locus is undefined at triaxiality {eta}, lode angle parameter {theta_bar}"
+        "{at}: plastic strain increment {increment} > 0 where the fracture locus is undefined (triaxiality {eta}, lode angle parameter {theta_bar}: beyond the locus cut-off or out of range)"
     )]
     UndefinedFractureStrain {
         /// Δε̄p of the increment.
@@ -194,7 +194,7 @@ pub enum LocusError {
     /// A plastic increment whose starting row (the previous state of a cell) has no
     /// defined fracture strain.
     #[error(
-        "plastic strain increment {increment} at {at}: the stress state or the fracture strain is undefined at the start of the increment"
+        "{at}: plastic strain increment {increment} > 0 but the stress state or the fracture strain is undefined at the start of the increment"
     )]
     UndefinedAtStart {
         /// Δε̄p of the increment.
