@@ -12,6 +12,7 @@ struct Case {
     model: ModelKind,
     points: Vec<CalibrationPoint>,
     params: Vec<(String, f64, f64)>,
+    fixed: Vec<(String, f64)>,
 }
 
 fn load() -> Vec<Case> {
@@ -27,7 +28,13 @@ fn load() -> Vec<Case> {
                 model: ModelKind::from_id(f[1]).unwrap(),
                 points: Vec::new(),
                 params: Vec::new(),
+                fixed: Vec::new(),
             }),
+            "fixed" => cases
+                .last_mut()
+                .unwrap()
+                .fixed
+                .push((f[1].to_string(), f[2].parse().unwrap())),
             "point" => {
                 let c = cases.last_mut().unwrap();
                 let n = c.points.len();
@@ -52,9 +59,13 @@ fn load() -> Vec<Case> {
 #[test]
 fn fits_agree_with_scipy_curve_fit() {
     let cases = load();
-    assert_eq!(cases.len(), 2);
+    assert_eq!(cases.len(), 3);
     for case in cases {
-        let report = fit_average(&FitSpec::new(case.model), &case.points).unwrap();
+        let mut spec = FitSpec::new(case.model);
+        for (name, value) in &case.fixed {
+            spec.fix(name, *value).unwrap();
+        }
+        let report = fit_average(&spec, &case.points).unwrap();
         for (name, value, se) in &case.params {
             let p = report.parameter(name).unwrap();
             assert!(
