@@ -14,7 +14,6 @@
 //! Every declared size is checked against the bytes present and against limits before any
 //! allocation. Decoding appends to the caller's buffer.
 
-use std::borrow::Cow;
 use std::ops::Range;
 use std::path::Path;
 
@@ -35,7 +34,7 @@ pub(crate) const MAX_ARRAY_BYTES: u64 = 1 << 38;
 /// Compressed arrays with at least this many blocks are decompressed in parallel.
 const PAR_MIN_BLOCKS: usize = 4;
 /// Base64 text decoded per step when streaming into the output.
-const B64_CHUNK_CHARS: usize = 64 * 1024;
+const B64_CHUNK_CHARS: usize = 1 << 20;
 
 /// The base64 engine: standard alphabet, padding optional, lenient trailing bits.
 pub(crate) const B64: GeneralPurpose = GeneralPurpose::new(
@@ -171,6 +170,10 @@ pub(crate) trait Sink {
     fn token(&mut self, tok: &str, ty: ScalarType) -> Result<(), String>;
     /// Reserve room for `n` more values.
     fn reserve(&mut self, n: usize);
+    /// Values received so far.
+    fn len(&self) -> usize;
+    /// Drops values beyond the first `n`.
+    fn truncate(&mut self, n: usize);
 }
 
 macro_rules! conv_loop {
@@ -242,6 +245,12 @@ impl Sink for F64Sink<'_> {
     fn reserve(&mut self, n: usize) {
         self.0.reserve(n);
     }
+    fn len(&self) -> usize {
+        self.0.len()
+    }
+    fn truncate(&mut self, n: usize) {
+        self.0.truncate(n);
+    }
 }
 
 /// Sink producing i64 values (for connectivity, offsets and types); float types are refused
@@ -296,6 +305,12 @@ impl Sink for I64Sink<'_> {
     fn reserve(&mut self, n: usize) {
         self.0.reserve(n);
     }
+    fn len(&self) -> usize {
+        self.0.len()
+    }
+    fn truncate(&mut self, n: usize) {
+        self.0.truncate(n);
+    }
 }
 
 fn short(tok: &str) -> String {
@@ -339,22 +354,47 @@ pub(crate) fn decode(
                     file.len().saturating_sub(span.start),
                 )
             })?;
+            let lead = text
+                .iter()
+                .position(|b| !b.is_ascii_whitespace())
+                .unwrap_or(text.len());
             let text = trim_ascii(text);
-            let cleaned: Cow<'_, [u8]> = if text.iter().any(u8::is_ascii_whitespace) {
-                Cow::Owned(
-                    text.iter()
+            let file_offset = span.start + lead;
+            let before = sink.len();
+            // fast path: base64 without inner whitespace (what VTK writes); on any failure, retry
+            // with whitespace removed if there is some
+            match decode_binary(
+                &Stream::B64 { text, file_offset },
+                layout,
+                req,
+                ctx,
+                scratch,
+                sink,
+            ) {
+                Err(e) => {
+                    if !text.iter().any(u8::is_ascii_whitespace) {
+                        return Err(e);
+                    }
+                    sink.truncate(before);
+                    let cleaned: Vec<u8> = text
+                        .iter()
                         .copied()
                         .filter(|b| !b.is_ascii_whitespace())
-                        .collect(),
-                )
-            } else {
-                Cow::Borrowed(text)
-            };
-            let stream = Stream::B64 {
-                text: &cleaned,
-                file_offset: span.start,
-            };
-            decode_binary(&stream, layout, req, ctx, scratch, sink)
+                        .collect();
+                    decode_binary(
+                        &Stream::B64 {
+                            text: &cleaned,
+                            file_offset,
+                        },
+                        layout,
+                        req,
+                        ctx,
+                        scratch,
+                        sink,
+                    )
+                }
+                ok => ok,
+            }
         }
         Payload::AppendedRaw(off) => {
             let bytes = file.get(*off..).unwrap_or(&[]);
@@ -1030,6 +1070,41 @@ mod tests {
         let mut exact = vec![0u8; 200];
         decompress_block(Compressor::Lzma, &x, &mut exact).unwrap();
         assert_eq!(exact, data);
+    }
+
+    #[test]
+    fn inline_base64_with_line_breaks() {
+        // some writers wrap base64 text at 76 characters
+        let v = values(40);
+        let raw = testenc::raw_bytes(&v, ScalarType::Float64, false);
+        let (h, d) = testenc::binary(&Enc::default(), &raw);
+        let t = STANDARD.encode([h, d].concat());
+        let wrapped: Vec<String> = t
+            .as_bytes()
+            .chunks(76)
+            .map(|c| String::from_utf8_lossy(c).into_owned())
+            .collect();
+        let file = format!("  {}\n", wrapped.join("\n")).into_bytes();
+        let mut out = vec![99.0];
+        decode(
+            &file,
+            &Payload::Inline(0..file.len()),
+            layout(&Enc::default()),
+            &Request {
+                ty: ScalarType::Float64,
+                total: 40,
+                elems: 0..40,
+            },
+            Ctx {
+                path: Path::new("t.vtu"),
+                what: "array 'a'",
+            },
+            &mut Vec::new(),
+            &mut F64Sink(&mut out),
+        )
+        .unwrap();
+        assert_eq!(out[0], 99.0);
+        assert_eq!(out[1..], v);
     }
 
     #[test]
