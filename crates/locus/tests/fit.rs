@@ -441,3 +441,56 @@ fn standard_errors_match_monte_carlo_scatter() {
         );
     }
 }
+
+mod round_trips {
+    use super::*;
+    use proptest::prelude::*;
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(48))]
+
+        /// Any Johnson–Cook locus in the range of published sets (D1 ∈ [−0.1, 0.6],
+        /// D2 ∈ [0.5, 6], D3 ∈ [−4, −0.3]; Johnson & Cook 1985 quote sets in and around
+        /// it) is recovered from exact points by the default multi-start fit.
+        #[test]
+        fn jc_any(d1 in -0.1f64..0.6, d2 in 0.5f64..6.0, d3 in -4.0f64..-0.3) {
+            let jc = JohnsonCook::new(d1, d2, d3).unwrap();
+            // Only loci positive over the sampled η (up to 1.2) make test data.
+            prop_assume!(jc.fracture_strain(1.2, 0.0).is_some_and(|e| e > 0.02));
+            let points = points_from(&jc, &jc_states());
+            let r = fit_average(&FitSpec::new(ModelKind::JohnsonCook), &points).unwrap();
+            for (p, t) in r.parameters.iter().zip([d1, d2, d3]) {
+                prop_assert!((p.value - t).abs() <= 1e-5 * t.abs().max(0.1),
+                    "{}: {} vs {t}", p.name, p.value);
+            }
+        }
+
+        /// Any Hosford–Coulomb locus with a ∈ [1.1, 3], b ∈ [0.1, 2], c ∈ [0.005, 0.15]
+        /// (n = 0.1) is recovered from exact points on mixed stress states.
+        #[test]
+        fn hc_any(a in 1.1f64..3.0, b in 0.1f64..2.0, c in 0.005f64..0.15) {
+            let hc = HosfordCoulomb::new(a, b, c, 0.1).unwrap();
+            let points = points_from(&hc, &mixed_states());
+            let r = fit_average(&FitSpec::new(ModelKind::HosfordCoulomb), &points).unwrap();
+            for (p, t) in r.parameters.iter().zip([a, b, c]) {
+                prop_assert!((p.value - t).abs() <= 1e-5 * t, "{}: {} vs {t}", p.name, p.value);
+            }
+        }
+
+        /// Any modified Mohr–Coulomb locus with c1 ∈ [0.01, 0.3], c2 ∈ [0.3, 0.8]·A,
+        /// c_theta_s ∈ [0.8, 1.05], c_theta_c ∈ [0.9, 1.3] (A = 800, n = 0.15 fixed) is
+        /// recovered from exact points on mixed stress states.
+        #[test]
+        fn mmc_any(c1 in 0.01f64..0.3, k2 in 0.3f64..0.8, cs in 0.8f64..1.05, cc in 0.9f64..1.3) {
+            let t = [800.0, 0.15, c1, 800.0 * k2, cs, 1.0, cc];
+            let mmc = Locus::from_values(ModelKind::ModifiedMohrCoulomb, &t).unwrap();
+            let points = points_from(&mmc, &mixed_states());
+            let mut spec = FitSpec::new(ModelKind::ModifiedMohrCoulomb);
+            spec.fix("A", 800.0).unwrap().fix("n", 0.15).unwrap();
+            let r = fit_average(&spec, &points).unwrap();
+            for (p, v) in r.parameters.iter().zip(t) {
+                prop_assert!((p.value - v).abs() <= 1e-5 * v, "{}: {} vs {v}", p.name, p.value);
+            }
+        }
+    }
+}
