@@ -382,6 +382,10 @@ impl<'a> IncrementFields<'a> {
 /// Sets `cells` to the state at the first row: ε̄p and 1/ε_f from `fields`, Φ = 0, no
 /// crossing. An undefined stress state or fracture strain is recorded, not an error
 /// (it matters only if the next increment is plastic).
+///
+/// Needed when the first row already carries plastic strain (damage before it is
+/// unknown and taken as 0, as in [`accumulate`]). When the first row has ε̄p = 0,
+/// starting from [`CellDamage::new`] and calling [`update_cells`] on it is the same.
 pub fn start_cells<L: FractureLocus + ?Sized>(
     locus: &L,
     fields: &IncrementFields<'_>,
