@@ -560,6 +560,9 @@ fn finish_array(
     }
     let name = get(a, "Name").unwrap_or("").to_string();
     let tyname = get(a, "type").unwrap_or("");
+    if section == Section::FieldData && scalar_type(tyname).is_none() {
+        return Ok(()); // dataset-level strings and the like: not ours to read
+    }
     let ty = scalar_type(tyname).ok_or_else(|| {
         p.unsupported(format!(
             "data type '{tyname}' of array '{name}' (expected Int8..Int64, UInt8..UInt64, Float32, Float64)"
@@ -700,6 +703,16 @@ mod tests {
         }
         let e = parse_str(&s).unwrap_err().to_string();
         assert!(e.contains("nested deeper"), "{e}");
+    }
+
+    #[test]
+    fn string_field_data_is_skipped() {
+        let s = r#"<VTKFile type="UnstructuredGrid"><UnstructuredGrid><FieldData><DataArray type="String" Name="note" NumberOfTuples="1" format="ascii">104 105 0</DataArray><DataArray type="Float64" Name="TimeValue" NumberOfTuples="1" format="ascii">2</DataArray></FieldData></UnstructuredGrid></VTKFile>"#;
+        let Header::Vtu(h) = parse_str(s).unwrap() else {
+            panic!()
+        };
+        assert_eq!(h.field_data.len(), 1);
+        assert_eq!(h.field_data[0].name, "TimeValue");
     }
 
     #[test]

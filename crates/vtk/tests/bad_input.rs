@@ -574,3 +574,87 @@ fn compressed_truncated_appended_base64_in_two_runs() {
     let path = d.put("b64cut.vtu", &full[..start + 30]);
     check(&path, &["truncated", "point coordinates"]);
 }
+
+#[test]
+fn folder_with_several_pvd_files() {
+    let d = Dir::new();
+    let c = "<VTKFile type=\"Collection\"><Collection></Collection></VTKFile>";
+    d.put("a.pvd", c);
+    d.put("b.pvd", c);
+    let e = Series::open(d.0.path()).unwrap_err().to_string();
+    assert!(
+        e.contains("several .pvd") && e.contains("a.pvd") && e.contains("b.pvd"),
+        "{e}"
+    );
+}
+
+#[test]
+fn folder_with_several_numbered_series() {
+    let d = Dir::new();
+    let v = testenc::vtu(&Enc::default(), &[Piece::hex_row(1, 0.0)], None);
+    for n in ["run_1.vtu", "run_2.vtu", "other_1.vtu"] {
+        d.put(n, &v);
+    }
+    let e = Series::open(d.0.path()).unwrap_err().to_string();
+    assert!(
+        e.contains("several numbered series")
+            && e.contains("run_*.vtu: 2 files")
+            && e.contains("other_*.vtu: 1 files"),
+        "{e}"
+    );
+}
+
+#[test]
+fn folder_with_duplicate_numbers() {
+    let d = Dir::new();
+    let v = testenc::vtu(&Enc::default(), &[Piece::hex_row(1, 0.0)], None);
+    d.put("run_1.vtu", &v);
+    d.put("run_01.vtu", &v);
+    let e = Series::open(d.0.path()).unwrap_err().to_string();
+    assert!(e.contains("same increment number"), "{e}");
+}
+
+#[test]
+fn folder_without_results() {
+    let d = Dir::new();
+    d.put("notes.txt", "x");
+    let e = Series::open(d.0.path()).unwrap_err().to_string();
+    assert!(e.contains("no .pvd and no numbered"), "{e}");
+}
+
+#[test]
+fn missing_path() {
+    let d = Dir::new();
+    let p = d.0.path().join("absent.vtu");
+    let e = Series::open(&p).unwrap_err().to_string();
+    assert!(e.contains("absent.vtu") && e.contains("cannot open"), "{e}");
+}
+
+#[test]
+fn missing_array_lists_the_arrays() {
+    let d = Dir::new();
+    let mut p = Piece::hex_row(1, 0.0);
+    p.cell_data.push(Arr::f64("eqps", 1, vec![0.0]));
+    let path = d.put("m.vtu", testenc::vtu(&Enc::default(), &[p], None));
+    let s = Series::open(&path).unwrap();
+    let mut buf = Vec::new();
+    let e = s
+        .increment(0)
+        .unwrap()
+        .read("stress", Location::Cell, &mut buf)
+        .unwrap_err()
+        .to_string();
+    assert!(
+        e.contains("m.vtu") && e.contains("'stress'") && e.contains("eqps (cell, 1)"),
+        "{e}"
+    );
+    let e = s
+        .increment(0)
+        .unwrap()
+        .read_tuples("eqps", Location::Cell, 0..2, &mut buf)
+        .unwrap_err()
+        .to_string();
+    assert!(e.contains("0..2") && e.contains("0..1"), "{e}");
+    let e = s.increment(5).unwrap_err().to_string();
+    assert!(e.contains("increment 5") && e.contains("has 1"), "{e}");
+}

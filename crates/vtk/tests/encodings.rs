@@ -367,3 +367,88 @@ proptest! {
         let _ = ductrace_vtk::fuzz_xml(&bytes[..keep]);
     }
 }
+
+#[test]
+fn pvd_parts_of_one_timestep_are_pieces() {
+    let dir = tempfile::tempdir().unwrap();
+    let enc = Enc::default();
+    let mut xml = String::from("<VTKFile type=\"Collection\"><Collection>\n");
+    for t in [1, 0] {
+        for part in [1, 0] {
+            let mut p = Piece::hex_row(2 + part, 0.0);
+            p.cell_data
+                .push(Arr::f64("eqps", 1, vec![(10 * t + part) as f64; 2 + part]));
+            let name = format!("t{t}_p{part}.vtu");
+            put(dir.path(), &name, &testenc::vtu(&enc, &[p], None));
+            xml.push_str(&format!(
+                "<DataSet timestep=\"{t}\" part=\"{part}\" file=\"{name}\"/>\n"
+            ));
+        }
+    }
+    xml.push_str("</Collection></VTKFile>");
+    let pvd = put(dir.path(), "parts.pvd", xml.as_bytes());
+    let s = Series::open(&pvd).unwrap();
+    assert_eq!(s.increments().len(), 2);
+    assert_eq!(s.increment_files(0).len(), 2);
+    assert_eq!(s.mesh().pieces(), &[(12, 2), (16, 3)]);
+    let mut buf = Vec::new();
+    s.increment(1)
+        .unwrap()
+        .read("eqps", Location::Cell, &mut buf)
+        .unwrap();
+    assert_eq!(buf, vec![10.0, 10.0, 11.0, 11.0, 11.0]);
+}
+
+#[test]
+fn writer_refuses_inconsistent_input_and_leaves_no_temp_file() {
+    let dir = tempfile::tempdir().unwrap();
+    let piece = Piece::hex_row(1, 0.0);
+    let cells = CellsRef {
+        connectivity: &piece.connectivity,
+        offsets: &piece.offsets,
+        types: &piece.types,
+    };
+    let path = dir.path().join("w.vtu");
+    let e = write::write_vtu(
+        &path,
+        &piece.points,
+        &cells,
+        &[],
+        &[ArrayRef {
+            name: "stress",
+            components: 6,
+            data: &[0.0; 5],
+        }],
+    )
+    .unwrap_err()
+    .to_string();
+    assert!(
+        e.contains("w.vtu") && e.contains("'stress' has 5 values"),
+        "{e}"
+    );
+    let bad = CellsRef {
+        connectivity: &[0, 1, 2, 3, 4, 5, 6, 9],
+        ..cells
+    };
+    assert!(write::write_vtu(&path, &piece.points, &bad, &[], &[]).is_err());
+    // names with xml characters survive
+    write::write_vtu(
+        &path,
+        &piece.points,
+        &cells,
+        &[],
+        &[ArrayRef {
+            name: "a<b>&\"c\"",
+            components: 1,
+            data: &[1.5],
+        }],
+    )
+    .unwrap();
+    let s = Series::open(&path).unwrap();
+    assert_eq!(s.fields()[0].name, "a<b>&\"c\"");
+    let left: Vec<_> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name())
+        .collect();
+    assert_eq!(left, vec![std::ffi::OsString::from("w.vtu")]);
+}
