@@ -711,12 +711,15 @@ fn decode_binary(
                     "block table: last block size {last} exceeds block size {bs}"
                 )));
             }
+            if nblocks > 0 && bs == 0 {
+                return Err(ctx.corrupt("block table: block size 0"));
+            }
             let total = if nblocks == 0 {
                 0
             } else if last == 0 {
-                nblocks * bs
+                nblocks.saturating_mul(bs)
             } else {
-                (nblocks - 1) * bs + last
+                (nblocks - 1).saturating_mul(bs).saturating_add(last)
             };
             if total != expected {
                 return Err(ctx.mismatch(

@@ -328,6 +328,14 @@ mod tests {
     }
 
     #[test]
+    fn series_and_increments_can_be_shared_across_threads() {
+        fn send_sync<T: Send + Sync>() {}
+        send_sync::<Series>();
+        send_sync::<Increment<'static>>();
+        send_sync::<Error>();
+    }
+
+    #[test]
     fn displays() {
         assert_eq!(Location::Cell.to_string(), "cell");
         assert_eq!(ScalarType::UInt16.to_string(), "UInt16");
