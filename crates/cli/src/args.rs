@@ -60,6 +60,14 @@ pub enum Command {
     #[command(after_help = DEMO_HELP)]
     Demo(DemoArgs),
 
+    /// Fit a fracture locus to the calibration points of a table or a study.
+    #[command(after_help = FIT_HELP)]
+    Fit(FitArgs),
+
+    /// Damage accumulation with a fitted locus: per specimen of a study, or over a whole result.
+    #[command(after_help = DAMAGE_HELP)]
+    Damage(DamageArgs),
+
     /// Print a shell completion script.
     #[command(
         after_help = "Example:\n  ductrace completions bash > ~/.local/share/bash-completion/completions/ductrace"
@@ -132,6 +140,36 @@ its numbers describe no real material.
 
 Example:
   ductrace demo ./ductrace-demo";
+
+const FIT_HELP: &str = "Models (--model):
+  jc   Johnson-Cook stress-state part: eps_f = D1 + D2 exp(D3 eta) (Johnson & Cook 1985)
+  mmc  modified Mohr-Coulomb with hardening A, n (Bai & Wierzbicki 2010); parameters A, n, c1, c2,
+       c_theta_s, c_theta_t, c_theta_c (A and n fixed from the study's hardening, c_theta_t = 1)
+  hc   Hosford-Coulomb a, b, c, n (Mohr & Marcadet 2015); n fixed at 0.1 unless --fix n=...
+Objectives (--objective):
+  average  eps_f(eta_avg, theta_avg) against each specimen's eps_f (a table or a study)
+  damage   linear damage along each specimen's history reaches 1 at its fracture instant (a study;
+           the better objective for non-proportional paths)
+Levenberg-Marquardt on ln(eps_f model / eps_f test), bounds by reparametrisation, several starts;
+standard errors from the Jacobian. The JSON output is the fit file other commands read (--locus).
+
+Examples:
+  ductrace fit table.csv --model jc
+  ductrace fit study.toml --model hc --objective damage --format json -o fit.json
+  ductrace fit study.toml --model mmc --fix c_theta_c=1.0";
+
+const DAMAGE_HELP: &str =
+    "On a STUDY: per specimen, damage D along the critical point's history, the
+increment and gauge elongation where D reaches 1, against the measured fracture elongation.
+On a RESULT: D at every point or cell and increment (streamed), the first to reach 1 and when,
+the largest D and the runners-up.
+Rules: linear D = integral of d(eqps)/eps_f(eta, theta) (trapezoid; Johnson & Cook 1985), or with
+--exponent M the power law dD = M D^((M-1)/M) d(eqps)/eps_f (Xue 2007). Increments without plastic
+increment add nothing.
+
+Examples:
+  ductrace damage study.toml --locus fit.json
+  ductrace damage results/plate.pvd --locus fit.json --format json";
 
 /// The options that name arrays and conventions, shared by every command that reads results.
 #[derive(Debug, Args, Clone, Default)]
@@ -269,6 +307,75 @@ pub struct DemoArgs {
     /// The study to run instead of the bundled one.
     #[arg(long, value_name = "STUDY")]
     pub study: Option<PathBuf>,
+}
+
+/// The objective of a fit.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum ObjectiveArg {
+    /// Fit eps_f(eta_avg, theta_avg) to each specimen's eps_f.
+    Average,
+    /// Fit so that damage reaches 1 at each specimen's fracture instant.
+    Damage,
+}
+
+/// Arguments of `ductrace fit`.
+#[derive(Debug, Args)]
+pub struct FitArgs {
+    /// The table (CSV or JSON as `ductrace table` writes) or the study (TOML).
+    #[arg(value_name = "TABLE|STUDY")]
+    pub input: PathBuf,
+
+    /// The locus model: jc, mmc or hc.
+    #[arg(long, value_name = "MODEL")]
+    pub model: String,
+
+    /// The objective.
+    #[arg(long, value_enum, default_value_t = ObjectiveArg::Average)]
+    pub objective: ObjectiveArg,
+
+    /// Fix parameters: NAME=VALUE[,NAME=VALUE...] (repeatable).
+    #[arg(long, value_name = "NAME=VALUE")]
+    pub fix: Vec<String>,
+
+    /// Free parameters, optionally with a start value: NAME or NAME=START (repeatable).
+    #[arg(long, value_name = "NAME[=START]")]
+    pub free: Vec<String>,
+
+    /// Output format (text or json).
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+
+    /// Write the output to FILE (atomically) instead of stdout.
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    pub output: Option<PathBuf>,
+}
+
+/// Arguments of `ductrace damage`.
+#[derive(Debug, Args)]
+pub struct DamageArgs {
+    /// The study (TOML) or one result (file or folder).
+    #[arg(value_name = "STUDY|RESULT")]
+    pub input: PathBuf,
+
+    /// The fit file written by `ductrace fit --format json`.
+    #[arg(long, value_name = "FIT.json")]
+    pub locus: PathBuf,
+
+    /// Power-law damage exponent M (Xue 2007); linear rule when omitted.
+    #[arg(long, value_name = "M")]
+    pub exponent: Option<f64>,
+
+    /// Output format (text or json).
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+
+    /// Write the output to FILE (atomically) instead of stdout.
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    pub output: Option<PathBuf>,
+
+    /// Array names and conventions (result mode).
+    #[command(flatten)]
+    pub fields: FieldArgs,
 }
 
 /// Arguments of `ductrace state`.

@@ -13,6 +13,8 @@
 mod args;
 mod cmd;
 mod failure;
+mod fieldpass;
+mod locusfile;
 mod output;
 mod progress;
 

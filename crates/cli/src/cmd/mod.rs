@@ -1,7 +1,9 @@
 //! The commands: each turns its arguments into a plan, runs it, and writes its output.
 
 mod completions;
+mod damage;
 mod demo;
+mod fit;
 mod history;
 mod probe;
 mod state;
@@ -24,6 +26,8 @@ pub fn run(cli: Cli) -> Result<(), Failure> {
         Command::History(a) => history::run(&a, cli.quiet),
         Command::Table(a) => table::run(&a, cli.quiet),
         Command::Demo(a) => demo::run(&a, cli.quiet),
+        Command::Fit(a) => fit::run(&a, cli.quiet),
+        Command::Damage(a) => damage::run(&a, cli.quiet),
     }
 }
 
