@@ -68,6 +68,10 @@ pub enum Command {
     #[command(after_help = DAMAGE_HELP)]
     Damage(DamageArgs),
 
+    /// Write the derived fields (and damage) of every increment as a VTU series.
+    #[command(after_help = EXPORT_HELP)]
+    Export(ExportArgs),
+
     /// Print a shell completion script.
     #[command(
         after_help = "Example:\n  ductrace completions bash > ~/.local/share/bash-completion/completions/ductrace"
@@ -170,6 +174,15 @@ increment add nothing.
 Examples:
   ductrace damage study.toml --locus fit.json
   ductrace damage results/plate.pvd --locus fit.json --format json";
+
+const EXPORT_HELP: &str = "Writes DIR/derived_NNNN.vtu (one per increment; appended raw binary, UInt64
+header, Float64) and DIR/derived.pvd, readable by VTK-based viewers and by ductrace itself. Arrays
+at the stress's location: stress (VTK order), sigma_h, sigma_vm, triaxiality, lode_angle_param, eqps, and damage (linear
+rule) with --locus; displacement as point data when present. Undefined values (triaxiality and
+Lode angle parameter where sigma_vm = 0) are written as NaN.
+
+Example:
+  ductrace export results/plate.pvd -o derived/ --locus fit.json";
 
 /// The options that name arrays and conventions, shared by every command that reads results.
 #[derive(Debug, Args, Clone, Default)]
@@ -374,6 +387,26 @@ pub struct DamageArgs {
     pub output: Option<PathBuf>,
 
     /// Array names and conventions (result mode).
+    #[command(flatten)]
+    pub fields: FieldArgs,
+}
+
+/// Arguments of `ductrace export`.
+#[derive(Debug, Args)]
+pub struct ExportArgs {
+    /// Result file or folder.
+    #[arg(value_name = "RESULT")]
+    pub result: PathBuf,
+
+    /// Output folder (created).
+    #[arg(short = 'o', long = "output", value_name = "DIR")]
+    pub output: PathBuf,
+
+    /// A fit file: adds the damage field.
+    #[arg(long, value_name = "FIT.json")]
+    pub locus: Option<PathBuf>,
+
+    /// Array names and conventions.
     #[command(flatten)]
     pub fields: FieldArgs,
 }

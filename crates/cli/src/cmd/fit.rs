@@ -294,7 +294,12 @@ pub fn fit_input(
         }
         fit_average(&spec, &points)
     };
-    result.map_err(|e| Failure::data(format!("{}: {e}", input.display())))
+    match result {
+        Ok(r) => Ok(r),
+        // The best attempt is still worth showing; `run` exits 1 after printing it.
+        Err(LocusError::NotConverged(best)) => Ok(*best),
+        Err(e) => Err(Failure::data(format!("{}: {e}", input.display()))),
+    }
 }
 
 /// The fit as text.
@@ -384,7 +389,9 @@ pub fn run(args: &FitArgs, quiet: bool) -> Result<(), Failure> {
         Ok(())
     } else {
         Err(Failure::data(format!(
-            "{}: the fit did not converge: {}",
+            "{}: the fit did not converge ({}); the data may not determine the model's parameters \
+             (a triaxiality-only model such as jc cannot follow Lode-angle effects): look at the \
+             residuals, fix a parameter or try another model",
             args.input.display(),
             report.termination
         )))

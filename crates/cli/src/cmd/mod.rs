@@ -3,6 +3,7 @@
 mod completions;
 mod damage;
 mod demo;
+mod export;
 mod fit;
 mod history;
 mod probe;
@@ -28,6 +29,7 @@ pub fn run(cli: Cli) -> Result<(), Failure> {
         Command::Demo(a) => demo::run(&a, cli.quiet),
         Command::Fit(a) => fit::run(&a, cli.quiet),
         Command::Damage(a) => damage::run(&a, cli.quiet),
+        Command::Export(a) => export::run(&a, cli.quiet),
     }
 }
 
