@@ -493,6 +493,12 @@ enum DataView<'a> {
 }
 
 impl<'a> Stream<'a> {
+    fn file_offset(&self) -> usize {
+        match self {
+            Stream::Raw { file_offset, .. } | Stream::B64 { file_offset, .. } => *file_offset,
+        }
+    }
+
     /// Bytes `0..n` of the stream (within the first base64 run).
     fn head(&self, n: usize, ctx: Ctx<'_>, buf: &mut Vec<u8>) -> Result<()> {
         buf.clear();
@@ -508,7 +514,7 @@ impl<'a> Stream<'a> {
                 let t = text
                     .get(..chars)
                     .ok_or_else(|| ctx.truncated(*file_offset, chars, text.len()))?;
-                let got = b64_into(t, buf, ctx)?;
+                let got = b64_into(t, *file_offset, buf, ctx)?;
                 if got < n {
                     return Err(ctx.truncated(*file_offset, chars, text.len()));
                 }
@@ -548,13 +554,33 @@ impl<'a> Stream<'a> {
 
 /// Decodes base64 `text` (whitespace-free) into the start of `out`, growing it if needed (never
 /// shrinking or clearing it, so a reused buffer costs nothing); returns the decoded length.
-fn b64_into(text: &[u8], out: &mut Vec<u8>, ctx: Ctx<'_>) -> Result<usize> {
+fn b64_into(text: &[u8], base: usize, out: &mut Vec<u8>, ctx: Ctx<'_>) -> Result<usize> {
     let need = text.len().div_ceil(4) * 3;
     if out.len() < need {
         out.resize(need, 0);
     }
-    B64.decode_slice(text, &mut out[..need])
-        .map_err(|e| ctx.corrupt(format!("base64: {e}")))
+    B64.decode_slice(text, &mut out[..need]).map_err(|e| {
+        use base64::{DecodeError, DecodeSliceError};
+        ctx.corrupt(match e {
+            DecodeSliceError::DecodeError(DecodeError::InvalidByte(at, b)) => format!(
+                "base64: invalid character {:?} at byte offset {}",
+                char::from(b),
+                base + at
+            ),
+            DecodeSliceError::DecodeError(DecodeError::InvalidLength(n)) => {
+                format!("base64: the text ends inside a 4-character group ({n} symbols)")
+            }
+            DecodeSliceError::DecodeError(DecodeError::InvalidLastSymbol(at, b)) => format!(
+                "base64: invalid last character {:?} at byte offset {}",
+                char::from(b),
+                base + at
+            ),
+            DecodeSliceError::DecodeError(DecodeError::InvalidPadding) => {
+                "base64: misplaced padding".to_string()
+            }
+            DecodeSliceError::OutputSliceTooSmall => "base64: output too small".to_string(),
+        })
+    })
 }
 
 impl DataView<'_> {
@@ -594,7 +620,7 @@ impl DataView<'_> {
                 let c0 = s / 3 * 4;
                 let c1 = e.div_ceil(3) * 4;
                 let t = text.get(c0..c1.min(text.len())).unwrap_or(&[]);
-                let got = b64_into(t, buf, ctx)?;
+                let got = b64_into(t, file_offset + c0, buf, ctx)?;
                 let lo = s - s / 3 * 3;
                 let hi = lo + r.len();
                 if got < hi {
@@ -696,7 +722,7 @@ fn decode_binary(
             };
             if nblocks.saturating_mul(w as u64) > table_avail {
                 return Err(ctx.truncated(
-                    0,
+                    stream.file_offset(),
                     usize::try_from(nblocks.saturating_mul(w as u64)).unwrap_or(usize::MAX),
                     table_avail as usize,
                 ));
@@ -835,7 +861,7 @@ pub(crate) fn decompress_block(comp: Compressor, src: &[u8], dst: &mut [u8]) -> 
             let mut d = flate2::Decompress::new(true);
             let status = d
                 .decompress(src, dst, flate2::FlushDecompress::Finish)
-                .map_err(|e| format!("zlib: {e}"))?;
+                .map_err(|e| format!("zlib: {}", e.to_string().to_lowercase()))?;
             match status {
                 flate2::Status::StreamEnd => d.total_out() as usize,
                 _ => {
@@ -847,13 +873,28 @@ pub(crate) fn decompress_block(comp: Compressor, src: &[u8], dst: &mut [u8]) -> 
                 }
             }
         }
-        Compressor::Lz4 => {
-            lz4_flex::block::decompress_into(src, dst).map_err(|e| format!("lz4: {e}"))?
-        }
+        Compressor::Lz4 => lz4_flex::block::decompress_into(src, dst)
+            .map_err(|e| format!("lz4: {}", e.to_string().to_lowercase()))?,
         Compressor::Lzma => {
+            // xz stream footer: CRC32, backward size, flags, "YZ" (xz file format 1.0.4, §2.1.2);
+            // a backward size beyond the block is refused here (lzma-rs 0.3 overflows on it)
+            if let Some(f) = src.len().checked_sub(8).and_then(|i| src.get(i..i + 4)) {
+                let mut a = [0u8; 4];
+                a.copy_from_slice(f);
+                let backward = (u64::from(u32::from_le_bytes(a)) + 1) * 4;
+                if backward > src.len() as u64 {
+                    return Err("lzma: xz footer gives an index larger than the block".into());
+                }
+            }
             let mut w = SliceWriter { buf: dst, pos: 0 };
             let mut r = std::io::BufReader::new(src);
-            lzma_rs::xz_decompress(&mut r, &mut w).map_err(|e| format!("lzma: {e}"))?;
+            // last line of defence against a panic inside the third-party decoder on hostile
+            // input: report it as corrupt data
+            let res = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+                lzma_rs::xz_decompress(&mut r, &mut w)
+            }))
+            .map_err(|_| "lzma: the decoder failed on malformed data".to_string())?;
+            res.map_err(|e| format!("lzma: {}", e.to_string().to_lowercase()))?;
             w.pos
         }
     };

@@ -52,7 +52,7 @@ pub enum Error {
         what: String,
     },
     /// The file ends before the data it declares.
-    #[error("{}: truncated {what}: needs {needed} bytes from byte offset {offset}, the file holds {available}", path.display())]
+    #[error("{}: truncated {what}: needs {needed} bytes from byte offset {offset}, the file holds only {available} from there", path.display())]
     Truncated {
         /// The file.
         path: PathBuf,

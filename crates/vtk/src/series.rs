@@ -631,6 +631,10 @@ impl Series {
     /// Opens a `.vtu`, `.pvtu`, `.pvd`, legacy `.vtk` file or a folder, reading the catalogue
     /// only: increments and times, the reference mesh (first increment's points and cells) and
     /// the first increment's fields.
+    ///
+    /// Cost: the first increment's headers are parsed and its mesh decoded; a `.pvd` is checked
+    /// for missing members; for a numbered folder every file's header is parsed (legacy files:
+    /// scanned) to find its TimeValue. No field array is decoded.
     pub fn open(path: &Path) -> Result<Series> {
         let meta = std::fs::metadata(path).map_err(|source| Error::Io {
             path: path.to_path_buf(),
@@ -1039,8 +1043,10 @@ impl<'s> Increment<'s> {
         Ok(info)
     }
 
-    /// Decodes tuples `range` (merged numbering) of an array: raw and uncompressed data are read
-    /// only for those tuples, compressed data only for the blocks covering them.
+    /// Decodes tuples `range` (merged numbering) of an array into `out` (cleared): raw and
+    /// uncompressed base64 data are read only for those tuples, compressed data only for the
+    /// blocks covering them, ascii text is tokenised but only those tuples parsed. Legacy
+    /// `.vtk` arrays are decoded whole into a temporary buffer and the range copied.
     pub fn read_tuples(
         &self,
         name: &str,

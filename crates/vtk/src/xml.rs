@@ -223,7 +223,11 @@ pub(crate) fn parse(bytes: &[u8], path: &Path) -> Result<Header> {
         let before = r.buffer_position();
         let ev = r.read_event().map_err(|e| {
             let at = r.error_position();
-            p.xml(at, e.to_string())
+            let mut m = e.to_string();
+            if m.contains("end of input") {
+                m.push_str(" (truncated file?)");
+            }
+            p.xml(at, m)
         })?;
         let after = r.buffer_position();
         let is_empty = matches!(&ev, Event::Empty(_));
