@@ -183,3 +183,30 @@ fn output_file_is_written_and_help_carries_the_caution() {
         .success()
         .stdout(predicate::str::contains("ductrace"));
 }
+
+/// A closed stdout (e.g. `| head -1`) is not an error: exit 0, nothing on stderr.
+#[test]
+fn broken_pipe_is_not_an_error() {
+    use std::process::{Command as Std, Stdio};
+    let bin = assert_cmd::cargo::cargo_bin("ductrace");
+    let mut child = Std::new(bin)
+        .args(["completions", "bash"])
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    // Close the read end before the child writes its (long) script.
+    drop(child.stdout.take());
+    let out = child.wait_with_output().unwrap();
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(
+        out.stderr.is_empty(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+}
