@@ -336,6 +336,21 @@ mod tests {
     }
 
     #[test]
+    fn fuzz_appended_decodes_a_valid_stream() {
+        // selector 0b0000_0100: UInt32 header, little-endian, zlib, raw, Float64
+        let enc = testenc::Enc {
+            comp: testenc::Comp::Zlib,
+            ..testenc::Enc::default()
+        };
+        let raw = testenc::raw_bytes(&[1.0, 2.0, 3.0, 4.0, 5.0, 6.0], ScalarType::Float64, false);
+        let (h, d) = testenc::binary(&enc, &raw);
+        let input = [vec![4u8], h, d].concat();
+        // 6 values counted, plus 4 points and 1 cell
+        assert_eq!(fuzz_appended(&input).unwrap(), 6 + 4 + 1);
+        assert!(fuzz_appended(&input[..input.len() - 3]).is_err());
+    }
+
+    #[test]
     fn displays() {
         assert_eq!(Location::Cell.to_string(), "cell");
         assert_eq!(ScalarType::UInt16.to_string(), "UInt16");
