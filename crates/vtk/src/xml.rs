@@ -693,6 +693,28 @@ mod tests {
     }
 
     #[test]
+    fn utf8_byte_order_mark_accepted() {
+        let s = "\u{feff}<?xml version=\"1.0\"?>\n<VTKFile type=\"UnstructuredGrid\"><UnstructuredGrid></UnstructuredGrid></VTKFile>";
+        assert!(matches!(parse_str(s), Ok(Header::Vtu(_))));
+    }
+
+    #[test]
+    fn information_key_children_skipped() {
+        // VTK 9 writes <InformationKey> children inside a DataArray before its text
+        let s = r#"<VTKFile type="UnstructuredGrid"><UnstructuredGrid><Piece NumberOfPoints="1" NumberOfCells="0"><Points><DataArray type="Float64" NumberOfComponents="3" format="ascii">
+  <InformationKey name="L2_NORM_RANGE" location="vtkDataArray" length="2"><Value index="0">1</Value><Value index="1">2</Value></InformationKey>
+  4 5 6
+</DataArray></Points></Piece></UnstructuredGrid></VTKFile>"#;
+        let Header::Vtu(h) = parse_str(s).unwrap() else {
+            panic!()
+        };
+        let Payload::Ascii(span) = &h.pieces[0].points.as_ref().unwrap().payload else {
+            panic!()
+        };
+        assert_eq!(s[span.clone()].trim(), "4 5 6");
+    }
+
+    #[test]
     fn doctype_refused() {
         let s = r#"<?xml version="1.0"?><!DOCTYPE lolz [<!ENTITY lol "lol">]><VTKFile type="UnstructuredGrid"></VTKFile>"#;
         let e = parse_str(s).unwrap_err().to_string();
