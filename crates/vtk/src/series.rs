@@ -73,6 +73,11 @@ fn kind_of(path: &Path) -> Kind {
     }
 }
 
+fn starts_with_tag(bytes: &[u8]) -> bool {
+    let t = bytes.strip_prefix(b"\xef\xbb\xbf").unwrap_or(bytes);
+    t.iter().find(|b| !b.is_ascii_whitespace()) == Some(&b'<')
+}
+
 fn sniff(bytes: &[u8]) -> Kind {
     let t = bytes
         .iter()
@@ -116,6 +121,8 @@ impl Loaded {
         let bytes = map_file(path)?;
         let kind = match kind_of(path) {
             Kind::Unknown => sniff(bytes.get()),
+            // some tools give XML files the legacy extension
+            Kind::Legacy if starts_with_tag(bytes.get()) => Kind::Vtu,
             k => k,
         };
         match kind {

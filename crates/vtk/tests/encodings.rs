@@ -452,3 +452,22 @@ fn writer_refuses_inconsistent_input_and_leaves_no_temp_file() {
         .collect();
     assert_eq!(left, vec![std::ffi::OsString::from("w.vtu")]);
 }
+
+#[test]
+fn xml_file_with_the_legacy_extension() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut p = Piece::hex_row(2, 0.0);
+    p.cell_data.push(Arr::f64("eqps", 1, vec![0.5, 0.25]));
+    let path = put(
+        dir.path(),
+        "xml.vtk",
+        &testenc::vtu(&Enc::default(), &[p], None),
+    );
+    let s = Series::open(&path).unwrap();
+    let mut buf = Vec::new();
+    s.increment(0)
+        .unwrap()
+        .read("eqps", Location::Cell, &mut buf)
+        .unwrap();
+    assert_eq!(buf, vec![0.5, 0.25]);
+}
