@@ -4,7 +4,9 @@
 //! `-o FILE`. Without `-o`, output goes to stdout. With `-o`, it is written atomically: to a
 //! temporary file in the same folder, flushed and synced, then renamed over the target, so
 //! an interrupted run leaves the old file or the new one, never half of one. A target that
-//! is one of the command's input files is refused.
+//! is one of the command's input files (the result, its collection, any increment's data
+//! file) is refused, and so is any existing file that looks like a VTK file: a text, CSV or
+//! JSON output never replaces a result.
 
 use std::fs;
 use std::io::Write;
@@ -26,6 +28,63 @@ pub enum Format {
     Json,
 }
 
+/// Every file a series reads that the catalogue knows: the result as given (file or folder),
+/// the collection it was found through, and every increment's data files (all `.pvd` parts).
+pub fn series_inputs(series: &ductrace_vtk::Series) -> Vec<PathBuf> {
+    let mut v = vec![series.path().to_path_buf()];
+    match series.discovery() {
+        ductrace_vtk::Discovery::Pvd(p) | ductrace_vtk::Discovery::FolderPvd(p) => {
+            v.push(p.clone());
+        }
+        _ => {}
+    }
+    for k in 0..series.increments().len() {
+        v.extend(series.increment_files(k).iter().cloned());
+    }
+    v
+}
+
+/// True when the first bytes of an existing file look like a VTK file (XML `<VTKFile` or a
+/// legacy `# vtk DataFile` header); false when it cannot be read.
+fn looks_like_vtk(path: &Path) -> bool {
+    use std::io::Read;
+    let Ok(mut f) = fs::File::open(path) else {
+        return false;
+    };
+    let mut head = [0u8; 512];
+    let mut n = 0;
+    while n < head.len() {
+        match f.read(&mut head[n..]) {
+            Ok(0) | Err(_) => break,
+            Ok(k) => n += k,
+        }
+    }
+    let head = &head[..n];
+    head.windows(8).any(|w| w == b"<VTKFile") || head.starts_with(b"# vtk DataFile")
+}
+
+/// Refuses a target that exists and looks like a VTK file (a result, or a piece of one that
+/// the catalogue does not list, such as the pieces of a `.pvtu`).
+pub fn refuse_vtk(target: &Path) -> Result<(), Failure> {
+    if target.is_file() && looks_like_vtk(target) {
+        return Err(Failure::usage(format!(
+            "{}: refusing to write over a VTK file (an input or a result); choose another output name",
+            target.display()
+        )));
+    }
+    Ok(())
+}
+
+/// Checks an output target before any work is done: not one of `inputs`, not an existing
+/// VTK file. `None` (stdout) always passes.
+pub fn check_target(target: Option<&Path>, inputs: &[&Path]) -> Result<(), Failure> {
+    if let Some(path) = target {
+        refuse_inputs(path, inputs)?;
+        refuse_vtk(path)?;
+    }
+    Ok(())
+}
+
 /// Writes `bytes` to `target` (stdout when `None`), refusing to overwrite any of `inputs`.
 pub fn emit(bytes: &[u8], target: Option<&Path>, inputs: &[&Path]) -> Result<(), Failure> {
     match target {
@@ -36,7 +95,7 @@ pub fn emit(bytes: &[u8], target: Option<&Path>, inputs: &[&Path]) -> Result<(),
             lock.flush().map_err(Failure::stdout)
         }
         Some(path) => {
-            refuse_inputs(path, inputs)?;
+            check_target(Some(path), inputs)?;
             write_atomic(path, bytes)
         }
     }

@@ -191,7 +191,9 @@ pub fn resolve(
         plastic_strain: options.plastic_strain.clone(),
         displacement: options.displacement.clone(),
     };
-    let detected = roles::detect(series.fields(), &overrides)?;
+    // The reader's role errors name no file: put the result in front.
+    let detected =
+        roles::detect(series.fields(), &overrides).map_err(|e| field_error(path, e.to_string()))?;
 
     // Stress.
     let stress_ref = detected.stress.ok_or_else(|| {

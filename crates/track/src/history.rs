@@ -312,6 +312,13 @@ fn track(
     }
     let loc = fields.location;
     let what = |k: usize| format!("{loc} {id} at increment {k}");
+    // Tensor errors carry no file name: put the increment's file in front.
+    let file_of = |k: usize| {
+        series.increment_files(k).first().map_or_else(
+            || series.path().display().to_string(),
+            |f| f.display().to_string(),
+        )
+    };
     // Increments to read at most, known in advance for index and time stops.
     let known = match stop {
         None => Some(StopAt {
@@ -371,7 +378,7 @@ fn track(
         inc.read_tuples(&fields.stress, loc, id..id + 1, &mut buf)?;
         let stress =
             Stress::from_slice(&buf, &fields.stress_order).map_err(|e| TrackError::Tensor {
-                what: format!("stress {:?} at {}", fields.stress, what(k)),
+                what: format!("{}: stress {:?} at {}", file_of(k), fields.stress, what(k)),
                 source: Box::new(e),
             })?;
         let state = stress.state();
@@ -392,7 +399,7 @@ fn track(
             }) => {
                 inc.read_tuples(name, loc, id..id + 1, &mut buf)?;
                 let t = strain::strain_to_vtk6(&buf, order).map_err(|e| TrackError::Tensor {
-                    what: format!("plastic strain {name:?} at {}", what(k)),
+                    what: format!("{}: plastic strain {name:?} at {}", file_of(k), what(k)),
                     source: Box::new(e),
                 })?;
                 let prev = prev_plastic.unwrap_or([0.0; 6]);

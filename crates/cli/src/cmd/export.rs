@@ -36,10 +36,23 @@ pub fn run(args: &ExportArgs, quiet: bool) -> Result<(), Failure> {
             dir.display()
         )));
     }
-    std::fs::create_dir_all(dir).map_err(|e| Failure::io(dir, "create", e))?;
-    for info in series.increments() {
-        output::refuse_inputs(&dir.join(file_name(info.index)), &[&info.file])?;
+    // Nothing lost: the output folder is not the input folder, and no file written (an
+    // increment's .vtu, the .pvd) is one of the inputs.
+    let inputs = output::series_inputs(&series);
+    let refs: Vec<&std::path::Path> = inputs.iter().map(|p| p.as_path()).collect();
+    if args.result.is_dir() {
+        output::refuse_inputs(dir, &[&args.result]).map_err(|_| {
+            Failure::usage(format!(
+                "{}: refusing to export into the input folder; choose another output folder",
+                dir.display()
+            ))
+        })?;
     }
+    output::refuse_inputs(&dir.join("derived.pvd"), &refs)?;
+    for info in series.increments() {
+        output::refuse_inputs(&dir.join(file_name(info.index)), &refs)?;
+    }
+    std::fs::create_dir_all(dir).map_err(|e| Failure::io(dir, "create", e))?;
     let mesh = series.mesh();
     let cells = CellsRef::of(mesh);
     let fields = ductrace_track::fields::resolve(&series, &options, true, false)?;

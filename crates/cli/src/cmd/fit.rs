@@ -370,6 +370,7 @@ pub fn run(args: &FitArgs, quiet: bool) -> Result<(), Failure> {
         ObjectiveArg::Average => Objective::Average,
         ObjectiveArg::Damage => Objective::Damage,
     };
+    output::check_target(args.output.as_deref(), &[&args.input])?;
     let report = fit_input(&args.input, kind, objective, &args.fix, &args.free, quiet)?;
     let text = match args.format {
         Format::Json | Format::Csv => {

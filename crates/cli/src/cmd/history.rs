@@ -44,6 +44,9 @@ pub fn request(args: &HistoryArgs) -> Result<HistoryRequest, Failure> {
 pub fn run(args: &HistoryArgs, quiet: bool) -> Result<(), Failure> {
     let req = request(args)?;
     let series = Series::open(&args.result)?;
+    let inputs = output::series_inputs(&series);
+    let refs: Vec<&std::path::Path> = inputs.iter().map(|p| p.as_path()).collect();
+    output::check_target(args.output.as_deref(), &refs)?;
     let h = ductrace_track::extract(&series, &req)?;
     if !quiet {
         for note in notes(&h) {
@@ -61,7 +64,7 @@ pub fn run(args: &HistoryArgs, quiet: bool) -> Result<(), Failure> {
         Format::Csv => to_csv(&h, with_gauge),
         Format::Text => to_text(&h, with_gauge),
     };
-    output::emit(text.as_bytes(), args.output.as_deref(), &[&args.result])
+    output::emit(text.as_bytes(), args.output.as_deref(), &refs)
 }
 
 /// Remarks for stderr: how the point was chosen, which arrays and conventions were used.

@@ -127,7 +127,9 @@ pub fn run(args: &ProbeArgs) -> Result<(), Failure> {
         }
         Format::Text => text(&rec),
     };
-    output::emit(text.as_bytes(), args.output.as_deref(), &[&args.result])
+    let inputs = output::series_inputs(&series);
+    let refs: Vec<&std::path::Path> = inputs.iter().map(|p| p.as_path()).collect();
+    output::emit(text.as_bytes(), args.output.as_deref(), &refs)
 }
 
 fn text(rec: &ProbeRec) -> String {

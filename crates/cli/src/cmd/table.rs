@@ -45,11 +45,20 @@ impl Campaign {
             .collect()
     }
 
-    /// The failures: specimen name and message.
+    /// The failures: specimen name and message (the message without the specimen's name,
+    /// which the caller puts in front).
     pub fn failures(&self) -> Vec<(String, String)> {
         self.results
             .iter()
-            .filter_map(|(s, r)| r.as_ref().err().map(|e| (s.name.clone(), e.to_string())))
+            .filter_map(|(s, r)| {
+                r.as_ref().err().map(|e| {
+                    let message = match e {
+                        StudyError::Specimen { message, .. } => message.clone(),
+                        other => other.to_string(),
+                    };
+                    (s.name.clone(), message)
+                })
+            })
             .collect()
     }
 }
@@ -205,6 +214,9 @@ pub fn run(args: &TableArgs, quiet: bool) -> Result<(), Failure> {
         .iter()
         .map(|s| study.result_path(s))
         .collect();
+    let mut refs: Vec<&std::path::Path> = inputs.iter().map(|p| p.as_path()).collect();
+    refs.push(&args.study);
+    output::check_target(args.output.as_deref(), &refs)?;
     let campaign = run_campaign(study, quiet);
     let text = match args.format {
         Format::Csv => to_csv(&campaign),
@@ -216,8 +228,6 @@ pub fn run(args: &TableArgs, quiet: bool) -> Result<(), Failure> {
         }
         Format::Text => to_text(&campaign),
     };
-    let mut refs: Vec<&std::path::Path> = inputs.iter().map(|p| p.as_path()).collect();
-    refs.push(&args.study);
     output::emit(text.as_bytes(), args.output.as_deref(), &refs)?;
     let failures = campaign.failures();
     for (name, e) in &failures {
