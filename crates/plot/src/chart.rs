@@ -297,13 +297,28 @@ pub(crate) fn no_data<DB: DrawingBackend>(
     let scale = page.scale;
     let area = chart.plotting_area().strip_coord_spec();
     let (w, h) = area.dim_in_pixel();
+    let style = font(18.0 * scale, MUTED);
+    let (tw, th) = area
+        .estimate_text_size(message, &style)
+        .unwrap_or((200, 16));
+    // Low in the plot, where the reference marks of the state plane leave room.
+    let (cx, cy) = (w as i32 / 2, (f64::from(h) * 0.82) as i32);
+    let (hw, hh) = (
+        tw as i32 / 2 + (12.0 * scale) as i32,
+        th as i32 / 2 + (8.0 * scale) as i32,
+    );
+    let corners = [(cx - hw, cy - hh), (cx + hw, cy + hh)];
+    area.draw(&Rectangle::new(corners, WHITE.filled()))
+        .or_draw()?;
+    area.draw(&Rectangle::new(corners, GRID_BOLD.stroke_width(1)))
+        .or_draw()?;
     text(
         &area,
         page.mode,
         message,
-        &font(18.0 * scale, MUTED),
+        &style,
         (HPos::Center, VPos::Center),
-        (w as i32 / 2, h as i32 / 2),
+        (cx, cy),
     )
 }
 

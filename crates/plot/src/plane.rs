@@ -196,8 +196,8 @@ pub(crate) fn draw<DB: DrawingBackend>(
         let (h, v, dx, dy) = match name {
             "uniaxial tension" => (HPos::Right, VPos::Bottom, -8, -4),
             "pure shear" => (HPos::Right, VPos::Bottom, -6, -6),
-            "plane-strain tension" => (HPos::Left, VPos::Bottom, 6, -6),
-            "equibiaxial tension" => (HPos::Left, VPos::Bottom, 6, -6),
+            "plane-strain tension" => (HPos::Left, VPos::Top, 6, 6),
+            "equibiaxial tension" => (HPos::Right, VPos::Bottom, -8, -4),
             _ => (HPos::Left, VPos::Bottom, 6, -6),
         };
         let d = |v: i32| (f64::from(v) * s) as i32;
