@@ -96,8 +96,14 @@ impl StressState {
                 shape: Shape::Undefined(Undefined::ZeroStress),
             };
         }
-        let inv = 1.0 / scale;
-        let [xx, yy, zz, xy, yz, xz] = c.map(|v| v * inv);
+        // Multiplying by 1/scale is exact enough in the normal range; outside it 1/scale
+        // overflows (subnormal scale) or is itself subnormal (scale near f64::MAX), so divide.
+        let [xx, yy, zz, xy, yz, xz] = if (1e-300..=1e300).contains(&scale) {
+            let inv = 1.0 / scale;
+            c.map(|v| v * inv)
+        } else {
+            c.map(|v| v / scale)
+        };
         let h = (xx + yy + zz) / 3.0;
         let (dx, dy, dz) = (xx - h, yy - h, zz - h);
         // J2 = s:s/2 with the off-diagonal terms counted twice.
@@ -177,8 +183,9 @@ impl StressState {
     /// about 1e102.
     pub fn j3(&self) -> f64 {
         match self.xi() {
-            Some(xi) => 2.0 / 27.0 * xi * self.sigma_vm.powi(3),
-            None => 0.0,
+            // ξ = 0 (pure shear) gives 0 even when σ_vm³ overflows (never 0 · ∞ = NaN).
+            Some(xi) if xi != 0.0 => 2.0 / 27.0 * xi * self.sigma_vm.powi(3),
+            _ => 0.0,
         }
     }
 }

@@ -108,7 +108,13 @@ impl Stress {
     /// solver's pressure is p = −σ_h.
     #[inline]
     pub fn hydrostatic(&self) -> f64 {
-        (self.c[0] + self.c[1] + self.c[2]) / 3.0
+        let sum = self.c[0] + self.c[1] + self.c[2];
+        if sum.is_finite() {
+            sum / 3.0
+        } else {
+            // the sum of finite components overflowed (near f64::MAX): divide first
+            self.c[0] / 3.0 + self.c[1] / 3.0 + self.c[2] / 3.0
+        }
     }
 
     /// The measures of the stress state: σ_h, σ_vm, J2, J3 and the [`crate::Shape`].
@@ -129,7 +135,8 @@ impl Stress {
         if scale == 0.0 {
             return [0.0; 3];
         }
-        let m = self.matrix() / scale;
+        // (component-wise division: 1/scale would overflow for a subnormal scale)
+        let m = self.matrix().map(|v| v / scale);
         let ev = m.symmetric_eigenvalues();
         let mut p = [ev[0] * scale, ev[1] * scale, ev[2] * scale];
         p.sort_by(|a, b| b.total_cmp(a));
