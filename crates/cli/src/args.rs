@@ -72,6 +72,14 @@ pub enum Command {
     #[command(after_help = EXPORT_HELP)]
     Export(ExportArgs),
 
+    /// Charts of a campaign (paths, state plane; locus and damage with a fit) as SVG/PNG.
+    #[command(after_help = PLOT_HELP)]
+    Plot(PlotArgs),
+
+    /// One self-contained HTML report of a campaign: table, fit, damage check, charts.
+    #[command(after_help = REPORT_HELP)]
+    Report(ReportArgs),
+
     /// Print a shell completion script.
     #[command(
         after_help = "Example:\n  ductrace completions bash > ~/.local/share/bash-completion/completions/ductrace"
@@ -183,6 +191,25 @@ Lode angle parameter where sigma_vm = 0) are written as NaN.
 
 Example:
   ductrace export results/plate.pvd -o derived/ --locus fit.json";
+
+const PLOT_HELP: &str =
+    "Writes into DIR: state-plane.svg (every path in the (triaxiality, Lode angle
+parameter) plane with the plane-stress curve and the standard states), path-NAME.svg per specimen
+(triaxiality and Lode angle parameter against equivalent plastic strain, averages and stop
+marked), and with --locus: locus.svg (fracture strain against triaxiality at theta = -1, 0, +1,
+or the Johnson-Cook curve, with the calibration points and their bands) and damage.svg (damage
+against gauge elongation, measured fracture marked). --png adds PNG files (embedded font).
+
+Example:
+  ductrace plot study.toml --locus fit.json -o plots/ --png";
+
+const REPORT_HELP: &str =
+    "One HTML file with inline CSS and SVG (no external assets; opens offline):
+the cautions, the job, the calibration table, the fit with its standard errors, the damage check
+against the measured fracture elongations, and the charts.
+
+Example:
+  ductrace report study.toml --locus fit.json -o report.html";
 
 /// The options that name arrays and conventions, shared by every command that reads results.
 #[derive(Debug, Args, Clone, Default)]
@@ -409,6 +436,42 @@ pub struct ExportArgs {
     /// Array names and conventions.
     #[command(flatten)]
     pub fields: FieldArgs,
+}
+
+/// Arguments of `ductrace plot`.
+#[derive(Debug, Args)]
+pub struct PlotArgs {
+    /// The study (TOML).
+    #[arg(value_name = "STUDY")]
+    pub study: PathBuf,
+
+    /// A fit file: adds the locus and damage charts.
+    #[arg(long, value_name = "FIT.json")]
+    pub locus: Option<PathBuf>,
+
+    /// Output folder (created).
+    #[arg(short = 'o', long = "output", value_name = "DIR")]
+    pub output: PathBuf,
+
+    /// Also write PNG files.
+    #[arg(long)]
+    pub png: bool,
+}
+
+/// Arguments of `ductrace report`.
+#[derive(Debug, Args)]
+pub struct ReportArgs {
+    /// The study (TOML).
+    #[arg(value_name = "STUDY")]
+    pub study: PathBuf,
+
+    /// The fit file written by `ductrace fit --format json`.
+    #[arg(long, value_name = "FIT.json")]
+    pub locus: PathBuf,
+
+    /// The HTML file to write.
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    pub output: PathBuf,
 }
 
 /// Arguments of `ductrace state`.

@@ -166,7 +166,10 @@ fn rule_name(rule: DamageRule) -> String {
     }
 }
 
-fn study_text(results: &[(String, Result<SpecimenDamage, String>)], rule: DamageRule) -> String {
+pub fn study_text(
+    results: &[(String, Result<SpecimenDamage, String>)],
+    rule: DamageRule,
+) -> String {
     let d = |v: Option<f64>| output::num_text(v, 4);
     let rows: Vec<Vec<String>> = results
         .iter()

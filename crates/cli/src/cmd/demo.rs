@@ -1,16 +1,20 @@
 //! `ductrace demo [OUT_DIR]`: the bundled, invented campaign end to end.
 //!
 //! The campaign lives in the source tree (fixtures/campaign/): real CalculiX runs of invented
-//! specimens of a fictional steel, with invented test results. The demo writes the campaign
-//! table and each specimen's critical-point history to OUT_DIR and prints where they are.
+//! specimens of a fictional steel, with invented test results. The demo runs the whole job —
+//! table → fit (Hosford–Coulomb with both objectives, modified Mohr–Coulomb) → damage check →
+//! charts → report — writes everything to OUT_DIR and prints where it is.
 
 use std::path::{Path, PathBuf};
 
 use ductrace_campaign::Study;
 
+use ductrace_locus::{ModelKind, Objective};
+
 use crate::args::{CAUTION, DemoArgs};
-use crate::cmd::{history, table};
+use crate::cmd::{damage, fit, history, report, table};
 use crate::failure::Failure;
+use crate::locusfile;
 use crate::output;
 
 /// The bundled study, located from the source tree this binary was built from.
@@ -83,14 +87,102 @@ pub fn run(args: &DemoArgs, quiet: bool) -> Result<(), Failure> {
             )?;
         }
     }
+    // Fits: the study's calibration points (average objective) and its histories (damage
+    // objective, the better one for non-proportional paths).
+    let mut fits = Vec::new();
+    for (kind, objective, file) in [
+        (
+            ModelKind::HosfordCoulomb,
+            Objective::Average,
+            "fit-hc-average.json",
+        ),
+        (
+            ModelKind::HosfordCoulomb,
+            Objective::Damage,
+            "fit-hc-damage.json",
+        ),
+        (
+            ModelKind::ModifiedMohrCoulomb,
+            Objective::Average,
+            "fit-mmc-average.json",
+        ),
+    ] {
+        let r = fit::fit_input(&study_path, kind, objective, &[], &[], true)?;
+        let doc = locusfile::to_json(&r, &study_path.display().to_string());
+        let text = serde_json::to_string_pretty(&doc)
+            .map_err(|e| Failure::data(format!("cannot encode JSON: {e}")))?;
+        write(file, &(text + "\n"))?;
+        fits.push((file, fit::to_text(&r)));
+    }
+    let chosen = out.join("fit-hc-damage.json");
+    // Damage check with the damage-objective fit.
+    let study = Study::load(&study_path)?;
+    let locus = locusfile::read(&chosen)?;
+    let histories: Vec<(String, Result<ductrace_track::History, String>)> = campaign
+        .results
+        .iter()
+        .map(|(s, r)| {
+            (
+                s.name.clone(),
+                match r {
+                    Ok(h) => Ok(h.clone()),
+                    Err(e) => Err(e.to_string()),
+                },
+            )
+        })
+        .collect();
+    let checks = damage::check_study(
+        &study,
+        &histories,
+        &locus,
+        ductrace_locus::DamageRule::Linear,
+    );
+    let dj = serde_json::to_string_pretty(&damage::study_json(
+        &checks,
+        ductrace_locus::DamageRule::Linear,
+    ))
+    .map_err(|e| Failure::data(format!("cannot encode JSON: {e}")))?;
+    write("damage.json", &(dj + "\n"))?;
+    let damage_text = damage::study_text(&checks, ductrace_locus::DamageRule::Linear);
+    write("damage.txt", &damage_text)?;
+    // Charts and the report.
+    let plots = report::write_plots(&study_path, Some(&chosen), &out.join("plots"), true, true)?;
+    let report_path = out.join("report.html");
+    report::write_report(
+        &study_path,
+        &chosen,
+        &report_path,
+        true,
+        format!(
+            "ductrace demo {}  (equivalently: ductrace report {} --locus {} -o {})",
+            out.display(),
+            study_path.display(),
+            chosen.display(),
+            report_path.display()
+        ),
+    )?;
+    written.push(report_path.clone());
     if !quiet {
         eprintln!("ductrace demo: {title}");
         eprintln!("INVENTED scenario: fictional material, specimens and test results.\n");
         eprint!("{table_text}");
+        for (file, text) in &fits {
+            eprintln!("\n{file}:\n{text}");
+        }
+        eprintln!("{damage_text}");
         eprintln!("\nwritten:");
         for p in &written {
             eprintln!("  {}", p.display());
         }
+        eprintln!(
+            "  {} ({} charts, SVG and PNG)",
+            out.join("plots").display(),
+            plots.len() / 2
+        );
+        eprintln!(
+            "\nopen {} in a browser for the whole campaign.",
+            report_path.display()
+        );
         eprintln!("\n{CAUTION}");
     }
     let failures = campaign.failures();

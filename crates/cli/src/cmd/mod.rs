@@ -7,8 +7,10 @@ mod export;
 mod fit;
 mod history;
 mod probe;
+mod report;
 mod state;
 mod table;
+mod visual;
 
 use ductrace_track::FieldOptions;
 use ductrace_vtk::Location;
@@ -30,6 +32,8 @@ pub fn run(cli: Cli) -> Result<(), Failure> {
         Command::Fit(a) => fit::run(&a, cli.quiet),
         Command::Damage(a) => damage::run(&a, cli.quiet),
         Command::Export(a) => export::run(&a, cli.quiet),
+        Command::Plot(a) => report::run_plot(&a, cli.quiet),
+        Command::Report(a) => report::run(&a, cli.quiet),
     }
 }
 
