@@ -15,7 +15,7 @@
 
 #![allow(clippy::unwrap_used)]
 
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 use assert_cmd::Command;
 use serde_json::Value;
@@ -329,9 +329,34 @@ fn demo_writes_its_outputs() {
         "table.json",
         "table.txt",
         "histories/nrb-r4.csv",
+        "fit-hc-average.json",
+        "fit-hc-damage.json",
+        "fit-mmc-average.json",
+        "damage.json",
+        "report.html",
+        "plots/state-plane.svg",
+        "plots/locus.png",
+        "plots/damage.svg",
+        "plots/path-srb.svg",
     ] {
         assert!(out.join(f).is_file(), "{f}");
     }
+    // The report: self-contained, carries the cautions and every specimen.
+    let html = std::fs::read_to_string(out.join("report.html")).unwrap();
+    assert!(html.contains("licensed engineering practice"));
+    assert!(html.contains("INVENTED"));
+    for name in ["srb", "nrb-r10", "nrb-r4", "nrb-r2", "pst-r2", "shear"] {
+        assert!(
+            html.contains(&format!("data-specimen=\"{name}\"")),
+            "{name}"
+        );
+    }
+    let external = html
+        .match_indices("http")
+        .filter(|(i, _)| !html[*i..].starts_with("http://www.w3.org/"))
+        .count();
+    assert_eq!(external, 0, "no external references");
+    assert!(html.matches("<svg").count() >= 9);
     let again = ductrace().arg("demo").arg(&out).output().unwrap();
     assert_eq!(again.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&again.stderr).contains("--force"));
@@ -341,5 +366,4 @@ fn demo_writes_its_outputs() {
         .args(["--force", "-q"])
         .assert()
         .success();
-    let _ = Path::new(&out);
 }
