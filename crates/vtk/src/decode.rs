@@ -802,17 +802,24 @@ fn decode_binary(
             let jobs: Vec<(usize, &[u8])> = (b0..b1)
                 .map(|k| (k, &comp_bytes[starts[k] - base..starts[k + 1] - base]))
                 .collect();
-            let run = |(k, src): &(usize, &[u8]), dst: &mut [u8]| -> Result<()> {
-                decompress_block(comp, src, dst).map_err(|e| ctx.corrupt(format!("block {k}: {e}")))
+            // one zlib state per worker, reset between blocks (its setup costs about as much
+            // as inflating a small block)
+            let run = |z: &mut Option<flate2::Decompress>,
+                       (k, src): &(usize, &[u8]),
+                       dst: &mut [u8]|
+             -> Result<()> {
+                decompress_block_with(comp, z, src, dst)
+                    .map_err(|e| ctx.corrupt(format!("block {k}: {e}")))
             };
             if jobs.len() >= PAR_MIN_BLOCKS {
                 scratch
                     .par_chunks_mut(bs)
                     .zip(jobs.par_iter())
-                    .try_for_each(|(dst, job)| run(job, dst))?;
+                    .try_for_each_init(|| None, |z, (dst, job)| run(z, job, dst))?;
             } else {
+                let mut z = None;
                 for (dst, job) in scratch.chunks_mut(bs).zip(jobs.iter()) {
-                    run(job, dst)?;
+                    run(&mut z, job, dst)?;
                 }
             }
             let lo = r.start - ustart;
@@ -848,7 +855,18 @@ impl std::io::Write for SliceWriter<'_> {
 }
 
 /// Decompresses one block into exactly `dst.len()` bytes.
+#[cfg(test)]
 pub(crate) fn decompress_block(comp: Compressor, src: &[u8], dst: &mut [u8]) -> Result<(), String> {
+    decompress_block_with(comp, &mut None, src, dst)
+}
+
+/// Decompresses one block into exactly `dst.len()` bytes, reusing the zlib state in `z`.
+fn decompress_block_with(
+    comp: Compressor,
+    z: &mut Option<flate2::Decompress>,
+    src: &[u8],
+    dst: &mut [u8],
+) -> Result<(), String> {
     let n = match comp {
         Compressor::None => {
             if src.len() != dst.len() {
@@ -858,7 +876,13 @@ pub(crate) fn decompress_block(comp: Compressor, src: &[u8], dst: &mut [u8]) -> 
             dst.len()
         }
         Compressor::Zlib => {
-            let mut d = flate2::Decompress::new(true);
+            let d = match z {
+                Some(d) => {
+                    d.reset(true);
+                    d
+                }
+                None => z.insert(flate2::Decompress::new(true)),
+            };
             let status = d
                 .decompress(src, dst, flate2::FlushDecompress::Finish)
                 .map_err(|e| format!("zlib: {}", e.to_string().to_lowercase()))?;
