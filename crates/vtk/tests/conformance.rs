@@ -439,15 +439,14 @@ fn check_file(rel: &str, expected_rel: &str) -> Vec<String> {
     errs
 }
 
-/// Whether `check_file` also checks component names of legacy files (switch on once the catalogue carries
+/// Whether `check_file` also checks component names of legacy files (the catalogue carries
 /// `LegacyArrayInfo::component_names`).
-const CHECK_LEGACY_NAMES: bool = false;
+const CHECK_LEGACY_NAMES: bool = true;
 
 /// VTK's legacy writer stores component names in `METADATA` / `COMPONENT_NAMES` (legacy_binary_51.vtk: point
 /// `stress` with XX, YY, ZZ, XY, YZ, XZ, handed to VTK by generate.py). The legacy parser reads them
-/// (`LegacyArrayInfo::component_names`); the series catalogue still sets them empty.
+/// (`LegacyArrayInfo::component_names`) and the series catalogue carries them.
 #[test]
-#[ignore = "FieldInfo::component_names of legacy arrays is not yet filled from LegacyArrayInfo::component_names"]
 fn legacy_component_names_reach_the_catalogue() {
     let s = Series::open(&good_dir().join("legacy_binary_51.vtk")).unwrap();
     let f = s.field("stress", Some(Location::Point)).unwrap();
