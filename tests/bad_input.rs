@@ -1107,3 +1107,19 @@ fn study_not_toml_or_missing() {
         &["cannot read"],
     );
 }
+
+#[test]
+fn study_with_a_missing_result_folder_cannot_be_fitted() {
+    let d = tempfile::tempdir().unwrap();
+    let st = write(
+        d.path(),
+        "study.toml",
+        &study_text(|t| t.replace("nrb_r4/nrb_r4.pvd", "nowhere/nrb_r4.pvd")),
+    );
+    check(
+        &args(&["fit", st.to_str().unwrap(), "--model", "jc"]),
+        1,
+        "nowhere/nrb_r4.pvd",
+        &["specimen nrb-r4 failed", "cannot be fitted", "cannot open"],
+    );
+}
