@@ -875,7 +875,20 @@ fn read_pvd(path: &Path) -> Result<Entries> {
     let mut out: Entries = Vec::new();
     for (t, _, p) in list {
         match out.last_mut() {
-            Some((Some(lt), files, _)) if *lt == t => files.push(p),
+            Some((Some(lt), files, _)) if *lt == t => {
+                // Parts of one timestep are pieces of one mesh: the same file twice would
+                // silently duplicate its cells.
+                if files.contains(&p) {
+                    return Err(Error::Collection {
+                        path: path.to_path_buf(),
+                        message: format!(
+                            "data set '{}' is listed twice at timestep {t}",
+                            p.strip_prefix(dir).unwrap_or(&p).display()
+                        ),
+                    });
+                }
+                files.push(p)
+            }
             _ => out.push((Some(t), vec![p], TimeRule::Index)),
         }
     }
