@@ -1123,3 +1123,45 @@ fn study_with_a_missing_result_folder_cannot_be_fitted() {
         &["specimen nrb-r4 failed", "cannot be fitted", "cannot open"],
     );
 }
+
+/// The same file twice at one timestep would duplicate its cells: refused. A timestep that
+/// is not a finite number: refused with its byte offset.
+#[test]
+fn pvd_same_file_twice_or_nonfinite_timestep() {
+    let d = tempfile::tempdir().unwrap();
+    write(
+        d.path(),
+        "a.vtu",
+        &vtu(&[(uniaxial(100.0), 0.0)], 0.0, false),
+    );
+    write(
+        d.path(),
+        "b.vtu",
+        &vtu(&[(uniaxial(200.0), 0.1)], 0.0, false),
+    );
+    let twice = write(
+        d.path(),
+        "twice.pvd",
+        &pvd(&[(0.0, 0, "a.vtu"), (1.0, 0, "b.vtu"), (1.0, 1, "b.vtu")]),
+    );
+    check(
+        &probe(&twice),
+        1,
+        "twice.pvd",
+        &["'b.vtu' is listed twice at timestep 1"],
+    );
+    for bad_t in ["nan", "inf"] {
+        let text = pvd(&[(0.0, 0, "a.vtu"), (1.0, 0, "b.vtu")])
+            .replace("timestep=\"1\"", &format!("timestep=\"{bad_t}\""));
+        let p = write(d.path(), "t.pvd", &text);
+        check(
+            &probe(&p),
+            1,
+            "t.pvd",
+            &[
+                &format!("timestep=\"{bad_t}\" is not a finite number"),
+                "byte offset",
+            ],
+        );
+    }
+}
