@@ -70,13 +70,32 @@ pub fn run_campaign(study: Study, quiet: bool) -> Campaign {
         .specimens
         .par_iter()
         .map(|spec| {
-            let r = ductrace_campaign::evaluate(&study, spec);
+            let r = guarded(&spec.name, || ductrace_campaign::evaluate(&study, spec));
             pb.inc(1);
             (spec.clone(), r)
         })
         .collect();
     pb.finish_and_clear();
     Campaign { study, results }
+}
+
+/// Runs one specimen's evaluation so that a panic (a bug) in it becomes that specimen's
+/// failure instead of taking the other specimens' rows down with it.
+fn guarded(
+    name: &str,
+    f: impl FnOnce() -> Result<History, StudyError>,
+) -> Result<History, StudyError> {
+    std::panic::catch_unwind(std::panic::AssertUnwindSafe(f)).unwrap_or_else(|payload| {
+        let what = payload
+            .downcast_ref::<&str>()
+            .map(|s| s.to_string())
+            .or_else(|| payload.downcast_ref::<String>().cloned())
+            .unwrap_or_else(|| "unknown panic".to_string());
+        Err(StudyError::Specimen {
+            specimen: name.to_string(),
+            message: format!("internal error while evaluating ({what}); please report it"),
+        })
+    })
 }
 
 fn values(p: &Point) -> Vec<String> {
@@ -241,5 +260,21 @@ pub fn run(args: &TableArgs, quiet: bool) -> Result<(), Failure> {
             failures.len(),
             campaign.results.len()
         )))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_panicking_specimen_becomes_its_failure() {
+        // (the default hook prints the panic on the test's stderr)
+        let r = guarded("nrb-r4", || panic!("index out of bounds"));
+        let e = r.err().map(|e| e.to_string()).unwrap_or_default();
+        assert!(
+            e.contains("nrb-r4") && e.contains("index out of bounds"),
+            "{e}"
+        );
     }
 }
