@@ -1,8 +1,11 @@
 //! Full-field passes: the measures of every point or cell of one increment, into reused
 //! buffers, in parallel.
 //!
-//! One fused kernel reads the decoded stress array and writes σ_h, σ_vm, η, θ̄ and a
-//! "defined" mask per entity; no allocation per entity, no intermediate array of states.
+//! One fused kernel ([`ductrace_tensor::batch::measures_of`]) reads the decoded stress
+//! array and writes σ_h, σ_vm, η, θ̄ and a "defined" mask per entity, counting non-finite
+//! input on the way; no allocation per entity, no intermediate array of states. Decoding
+//! ([`FieldState::fetch`]) and evaluation ([`FieldState::evaluate`]) are separate steps so
+//! a pass can decode the next increment while it evaluates this one.
 
 use ductrace_tensor::{ComponentOrder, batch};
 use ductrace_track::fields::{EqpsSource, Fields};
@@ -34,9 +37,10 @@ pub struct FieldState {
 const CHUNK: usize = batch::CHUNK;
 
 impl FieldState {
-    /// Decodes and evaluates one increment. Non-finite stress or ε̄p values are an error
-    /// unless `allow_nonfinite`, in which case those entities are undefined (and their ε̄p
-    /// is carried from the previous increment by the caller's kernel, which sees them as
+    /// Decodes and evaluates one increment: [`FieldState::fetch`] then
+    /// [`FieldState::evaluate`]. Non-finite stress or ε̄p values are an error unless
+    /// `allow_nonfinite`, in which case those entities are undefined (and their ε̄p is
+    /// carried from the previous increment by the caller's kernel, which sees them as
     /// undefined).
     pub fn load(
         &mut self,
@@ -45,49 +49,50 @@ impl FieldState {
         fields: &Fields,
         allow_nonfinite: bool,
     ) -> Result<(), Failure> {
+        self.fetch(series, inc, fields)?;
+        self.evaluate(series, inc.index(), fields, allow_nonfinite)
+    }
+
+    /// Decodes the stress and ε̄p arrays of one increment into the reused buffers, nothing
+    /// else; a pass can fetch increment k + 1 into a second state while it evaluates
+    /// increment k.
+    pub fn fetch(
+        &mut self,
+        series: &Series,
+        inc: &Increment<'_>,
+        fields: &Fields,
+    ) -> Result<(), Failure> {
         let loc = fields.location;
         inc.read(&fields.stress, loc, &mut self.stress)?;
-        let width = fields.stress_components;
-        if let Some(nf) = find_nonfinite(&self.stress, width)
-            && !allow_nonfinite
-        {
-            return Err(Failure::data(format!(
-                "{}: stress {:?} at increment {} has {} non-finite values (first at {loc} {}); --allow-nonfinite skips them",
-                series.path().display(),
-                fields.stress,
-                inc.index(),
-                nf.count,
-                nf.first_tuple
-            )));
-        }
         match &fields.eqps {
             Some(EqpsSource::Scalar(name)) => {
                 inc.read(name, loc, &mut self.eqps)?;
-                if let Some(nf) = find_nonfinite(&self.eqps, 1)
-                    && !allow_nonfinite
-                {
-                    return Err(Failure::data(format!(
-                        "{}: equivalent plastic strain {name:?} at increment {} has {} non-finite values (first at {loc} {}); --allow-nonfinite skips them",
-                        series.path().display(),
-                        inc.index(),
-                        nf.count,
-                        nf.first_tuple
-                    )));
-                }
+                Ok(())
             }
-            Some(EqpsSource::Accumulated { name, .. }) => {
-                return Err(Failure::data(format!(
-                    "{}: full-field work needs a scalar equivalent plastic strain array; this result has only the plastic strain tensor {name:?} (name a scalar with --eqps)",
-                    series.path().display()
-                )));
-            }
-            None => {
-                return Err(Failure::data(format!(
-                    "{}: no equivalent plastic strain array (name one with --eqps)",
-                    series.path().display()
-                )));
-            }
+            Some(EqpsSource::Accumulated { name, .. }) => Err(Failure::data(format!(
+                "{}: full-field work needs a scalar equivalent plastic strain array; this result has only the plastic strain tensor {name:?} (name a scalar with --eqps)",
+                series.path().display()
+            ))),
+            None => Err(Failure::data(format!(
+                "{}: no equivalent plastic strain array (name one with --eqps)",
+                series.path().display()
+            ))),
         }
+    }
+
+    /// Evaluates the fetched arrays of increment `index` in one parallel pass: σ_h, σ_vm,
+    /// η, θ̄ and the mask per entity ([`batch::measures_of`]), counting non-finite input on
+    /// the way; the first non-finite value is located (for the message) only when there is
+    /// one and `allow_nonfinite` is off.
+    pub fn evaluate(
+        &mut self,
+        series: &Series,
+        index: usize,
+        fields: &Fields,
+        allow_nonfinite: bool,
+    ) -> Result<(), Failure> {
+        let loc = fields.location;
+        let width = fields.stress_components;
         let n = self.stress.len() / width;
         if self.eqps.len() != n {
             return Err(Failure::data(format!(
@@ -103,20 +108,23 @@ impl FieldState {
         self.defined.resize(n, false);
         let order: ComponentOrder = fields.stress_order;
         let stress = &self.stress;
-        self.sigma_h
+        let (bad_stress, bad_eqps) = self
+            .sigma_h
             .par_chunks_mut(CHUNK)
             .zip(self.sigma_vm.par_chunks_mut(CHUNK))
             .zip(self.triaxiality.par_chunks_mut(CHUNK))
             .zip(self.lode_angle_param.par_chunks_mut(CHUNK))
             .zip(self.defined.par_chunks_mut(CHUNK))
             .zip(stress.par_chunks(CHUNK * width))
-            .for_each(|(((((h, vm), eta), theta), def), s)| {
+            .zip(self.eqps.par_chunks(CHUNK))
+            .map(|((((((h, vm), eta), theta), def), s), e)| {
+                let mut bad = 0usize;
                 for (i, t) in s.chunks_exact(width).enumerate() {
-                    match batch::state_of(t, &order) {
-                        Ok(st) => {
-                            h[i] = st.sigma_h;
-                            vm[i] = st.sigma_vm;
-                            match st.lode() {
+                    match batch::measures_of(t, &order) {
+                        Ok(m) => {
+                            h[i] = m.sigma_h;
+                            vm[i] = m.sigma_vm;
+                            match m.shape {
                                 Some(l) => {
                                     eta[i] = l.triaxiality;
                                     theta[i] = l.lode_angle_param;
@@ -130,6 +138,7 @@ impl FieldState {
                             }
                         }
                         Err(_) => {
+                            bad += 1;
                             h[i] = f64::NAN;
                             vm[i] = f64::NAN;
                             eta[i] = 0.0;
@@ -138,7 +147,36 @@ impl FieldState {
                         }
                     }
                 }
-            });
+                (bad, e.iter().filter(|v| !v.is_finite()).count())
+            })
+            .reduce(|| (0, 0), |a, b| (a.0 + b.0, a.1 + b.1));
+        if bad_stress > 0
+            && !allow_nonfinite
+            && let Some(nf) = find_nonfinite(&self.stress, width)
+        {
+            return Err(Failure::data(format!(
+                "{}: stress {:?} at increment {index} has {} non-finite values (first at {loc} {}); --allow-nonfinite skips them",
+                series.path().display(),
+                fields.stress,
+                nf.count,
+                nf.first_tuple
+            )));
+        }
+        if bad_eqps > 0
+            && !allow_nonfinite
+            && let Some(nf) = find_nonfinite(&self.eqps, 1)
+        {
+            let name = match &fields.eqps {
+                Some(EqpsSource::Scalar(name)) => name.as_str(),
+                _ => "",
+            };
+            return Err(Failure::data(format!(
+                "{}: equivalent plastic strain {name:?} at increment {index} has {} non-finite values (first at {loc} {}); --allow-nonfinite skips them",
+                series.path().display(),
+                nf.count,
+                nf.first_tuple
+            )));
+        }
         Ok(())
     }
 }

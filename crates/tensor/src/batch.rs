@@ -25,6 +25,99 @@ pub fn state_of(values: &[f64], order: &ComponentOrder) -> Result<StressState, T
     Ok(Stress::from_slice(values, order)?.state())
 }
 
+/// The measures a full-field pass needs from one tuple: σ_h, σ_vm and, where defined, η and θ̄.
+///
+/// The same quantities as [`StressState`] (FIELD-NOTES §1: σ_h = tr σ/3, σ_vm = √(3 J2),
+/// η = σ_h/σ_vm (Bao & Wierzbicki 2004), θ̄ = 1 − (2/π) arccos ξ with ξ = (27/2) J3/σ_vm³
+/// clamped to [−1, 1] (Bai & Wierzbicki 2008)), computed with the same operations in the
+/// same order, so every value is bit-identical to [`StressState::from_vtk6`]; the Lode
+/// parameter μ (one `tan` per tuple) is left out.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Measures {
+    /// Hydrostatic stress σ_h.
+    pub sigma_h: f64,
+    /// Von Mises stress σ_vm.
+    pub sigma_vm: f64,
+    /// η and θ̄; `None` for a zero or purely hydrostatic tensor (σ_vm vanishes).
+    pub shape: Option<ShapeMeasures>,
+}
+
+/// Triaxiality and Lode angle parameter of a tuple whose σ_vm does not vanish.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ShapeMeasures {
+    /// Triaxiality η = σ_h/σ_vm.
+    pub triaxiality: f64,
+    /// Lode angle parameter θ̄ ∈ [−1, 1].
+    pub lode_angle_param: f64,
+}
+
+/// [`Measures`] of six finite components in VTK's order `XX, YY, ZZ, XY, YZ, XZ`; the
+/// finiteness of `c` is the caller's to check (see [`measures_of`]).
+#[inline]
+pub fn measures_vtk6(c: &[f64; 6]) -> Measures {
+    // Mirrors StressState::from_vtk6 operation by operation (see the test
+    // `measures_are_bit_identical_to_stress_state`).
+    let scale = c.iter().fold(0.0_f64, |acc, v| acc.max(v.abs()));
+    if scale == 0.0 || !scale.is_finite() {
+        return Measures {
+            sigma_h: 0.0,
+            sigma_vm: 0.0,
+            shape: None,
+        };
+    }
+    // As StressState: multiply by 1/scale in the normal range, divide outside it.
+    let [xx, yy, zz, xy, yz, xz] = if (1e-300..=1e300).contains(&scale) {
+        let inv = 1.0 / scale;
+        c.map(|v| v * inv)
+    } else {
+        c.map(|v| v / scale)
+    };
+    let h = (xx + yy + zz) / 3.0;
+    let (dx, dy, dz) = (xx - h, yy - h, zz - h);
+    let j2 = 0.5 * (dx * dx + dy * dy + dz * dz) + xy * xy + yz * yz + xz * xz;
+    let vm = (3.0 * j2).sqrt();
+    let sigma_h = h * scale;
+    let sigma_vm = vm * scale;
+    if vm <= crate::DEGENERATE_REL_TOL {
+        return Measures {
+            sigma_h,
+            sigma_vm,
+            shape: None,
+        };
+    }
+    let j3 = dx * (dy * dz - yz * yz) - xy * (xy * dz - yz * xz) + xz * (xy * yz - dy * xz);
+    let xi = (13.5 * j3 / (vm * vm * vm)).clamp(-1.0, 1.0);
+    let lode_angle_param = 1.0 - (2.0 / std::f64::consts::PI) * xi.acos();
+    Measures {
+        sigma_h,
+        sigma_vm,
+        shape: Some(ShapeMeasures {
+            triaxiality: h / vm,
+            lode_angle_param,
+        }),
+    }
+}
+
+/// [`Measures`] of one tuple of 6 (in `order`) or 9 (row-major) components; errors as
+/// [`state_of`] (a non-finite component, a non-symmetric 9-component tensor, a bad width).
+#[inline]
+pub fn measures_of(values: &[f64], order: &ComponentOrder) -> Result<Measures, TensorError> {
+    if order.is_vtk() && values.len() == 6 && values.iter().all(|v| v.is_finite()) {
+        let mut c = [0.0; 6];
+        c.copy_from_slice(values);
+        return Ok(measures_vtk6(&c));
+    }
+    let s = state_of(values, order)?;
+    Ok(Measures {
+        sigma_h: s.sigma_h,
+        sigma_vm: s.sigma_vm,
+        shape: s.lode().map(|l| ShapeMeasures {
+            triaxiality: l.triaxiality,
+            lode_angle_param: l.lode_angle_param,
+        }),
+    })
+}
+
 /// Evaluates every tuple of `values` (width 6 or 9) into `out`, in parallel.
 ///
 /// `out.len()` tuples are read, so `values.len()` must equal `out.len() * width`. On
@@ -113,6 +206,72 @@ mod tests {
             TensorError::AtTuple { index, .. } => assert_eq!(index, CHUNK + 3),
             other => panic!("unexpected {other}"),
         }
+    }
+
+    #[test]
+    fn measures_are_bit_identical_to_stress_state() {
+        // Reference: StressState::from_vtk6, the crate's definition (FIELD-NOTES §1).
+        let mut seed = 0x2545_f491_4f6c_dd1d_u64;
+        let mut next = || {
+            seed ^= seed << 13;
+            seed ^= seed >> 7;
+            seed ^= seed << 17;
+            (seed >> 11) as f64 / (1u64 << 53) as f64 * 2.0 - 1.0
+        };
+        let mut cases: Vec<[f64; 6]> = vec![
+            [0.0; 6],
+            [5.0, 5.0, 5.0, 0.0, 0.0, 0.0],
+            [1.0, 0.0, 0.0, 0.0, 0.0, 0.0],
+            [0.0, 0.0, -1.0, 0.0, 0.0, 0.0],
+            [1e-300, 0.0, 0.0, 1e-300, 0.0, 0.0],
+            [1e300, -1e300, 0.0, 0.0, 0.0, 0.0],
+            [4e-320, 0.0, -1e-320, 3e-321, 0.0, 0.0],
+            [
+                f64::MIN_POSITIVE,
+                0.0,
+                0.0,
+                0.0,
+                f64::MIN_POSITIVE / 2.0,
+                0.0,
+            ],
+            [f64::MAX, 0.0, -f64::MAX / 2.0, 0.0, 1e307, 0.0],
+            [1.0, 1.0, 1.0, 1e-12, 0.0, 0.0],
+            [0.0, 0.0, 0.0, 1e150, 0.0, 0.0],
+        ];
+        for i in 0..20_000 {
+            let m = 10f64.powi((i % 41) * 15 - 300);
+            cases.push([0; 6].map(|_| m * next()));
+        }
+        for c in cases {
+            let s = StressState::from_vtk6(&c);
+            let m = measures_vtk6(&c);
+            assert_eq!(m.sigma_h.to_bits(), s.sigma_h.to_bits(), "{c:?}");
+            assert_eq!(m.sigma_vm.to_bits(), s.sigma_vm.to_bits(), "{c:?}");
+            match (m.shape, s.lode()) {
+                (Some(a), Some(b)) => {
+                    assert_eq!(a.triaxiality.to_bits(), b.triaxiality.to_bits(), "{c:?}");
+                    assert_eq!(a.lode_angle_param.to_bits(), b.lode_angle_param.to_bits());
+                }
+                (None, None) => {}
+                other => panic!("{c:?}: {other:?}"),
+            }
+            let via = measures_of(&c, &ComponentOrder::VTK).unwrap();
+            assert_eq!(via, m);
+        }
+    }
+
+    #[test]
+    fn measures_of_refuses_what_state_of_refuses() {
+        let order = ComponentOrder::VTK;
+        assert!(measures_of(&[1.0, f64::NAN, 0.0, 0.0, 0.0, 0.0], &order).is_err());
+        assert!(measures_of(&[1.0, 0.0, 0.0, 0.0, f64::INFINITY, 0.0], &order).is_err());
+        assert!(measures_of(&[1.0, 2.0, 3.0, 4.0], &order).is_err());
+        // 9 components, not symmetric
+        assert!(measures_of(&[1.0, 2.0, 0.0, 0.0, 1.0, 0.0, 0.0, 0.0, 1.0], &order).is_err());
+        // 9 components, symmetric: the same as the 6-component form
+        let nine = measures_of(&[3.0, 1.0, 0.5, 1.0, -2.0, 0.25, 0.5, 0.25, 1.0], &order).unwrap();
+        let six = measures_vtk6(&[3.0, -2.0, 1.0, 1.0, 0.25, 0.5]);
+        assert_eq!(nine, six);
     }
 
     #[test]

@@ -218,6 +218,11 @@ pub struct FieldDamage {
 }
 
 /// Streams every increment of a result and accumulates damage at every entity.
+///
+/// Two-stage pipeline: while increment k is evaluated and accumulated (in parallel over
+/// entities), increment k + 1 is decoded into a second [`FieldState`] (`rayon::join`), so
+/// decoding and arithmetic overlap. `each` still sees the increments in order, and errors
+/// are reported in increment order (those of k before the decoding error of k + 1).
 pub fn field_damage(
     series: &Series,
     options: &ductrace_track::FieldOptions,
@@ -227,65 +232,102 @@ pub fn field_damage(
 ) -> Result<FieldDamage, Failure> {
     let fields = ductrace_track::fields::resolve(series, options, true, false)?;
     let mut state = FieldState::default();
+    let mut spare = FieldState::default();
     let mut cells: Vec<CellDamage> = Vec::new();
     let mut times = Vec::new();
-    const CHUNK: usize = 8192;
-    for info in series.increments() {
+    let infos = series.increments();
+    if let Some(first) = infos.first() {
+        let inc = series.increment(first.index)?;
+        state.fetch(series, &inc, &fields)?;
+    }
+    for (pos, info) in infos.iter().enumerate() {
         let k = info.index;
-        let inc = series.increment(k)?;
-        state.load(series, &inc, &fields, options.allow_nonfinite)?;
-        if options.allow_nonfinite {
-            for i in 0..state.eqps.len() {
-                if !state.eqps[i].is_finite() {
-                    state.eqps[i] = cells.get(i).map_or(0.0, |c| c.eqps());
-                    state.defined[i] = false;
+        let next = infos.get(pos + 1).map(|i| i.index);
+        let allow = options.allow_nonfinite;
+        let (fetched, done) = rayon::join(
+            || -> Result<(), Failure> {
+                match next {
+                    Some(j) => {
+                        let inc = series.increment(j)?;
+                        spare.fetch(series, &inc, &fields)
+                    }
+                    None => Ok(()),
                 }
-            }
-        }
-        let fields_k = IncrementFields::new(
-            k,
-            &state.eqps,
-            &state.triaxiality,
-            &state.lode_angle_param,
-            &state.defined,
-        )
-        .map_err(|e| Failure::data(format!("{}: {e}", series.path().display())))?;
-        if k == 0 {
-            cells = vec![CellDamage::new(); state.eqps.len()];
-            cells
-                .par_chunks_mut(CHUNK)
-                .enumerate()
-                .try_for_each(|(c, chunk)| {
-                    start_cells(
-                        locus,
-                        &fields_k.window(c * CHUNK, chunk.len()),
-                        c * CHUNK,
-                        chunk,
-                    )
-                })
-        } else {
-            cells
-                .par_chunks_mut(CHUNK)
-                .enumerate()
-                .try_for_each(|(c, chunk)| {
-                    update_cells(
-                        locus,
-                        rule,
-                        &fields_k.window(c * CHUNK, chunk.len()),
-                        c * CHUNK,
-                        chunk,
-                    )
-                })
-        }
-        .map_err(|e| Failure::data(format!("{}: {e}", series.path().display())))?;
+            },
+            || -> Result<(), Failure> {
+                state.evaluate(series, k, &fields, allow)?;
+                accumulate_increment(series, locus, rule, k, allow, &mut state, &mut cells)
+            },
+        );
+        done?;
         times.push(info.time);
         each(k, &state, &cells)?;
+        fetched?;
+        std::mem::swap(&mut state, &mut spare);
     }
     Ok(FieldDamage {
         location: fields.location,
         cells,
         times,
     })
+}
+
+/// One increment of [`field_damage`]: carries ε̄p over non-finite values (when allowed),
+/// then starts (k = 0) or advances every entity's damage, in parallel chunks.
+fn accumulate_increment(
+    series: &Series,
+    locus: &Locus,
+    rule: DamageRule,
+    k: usize,
+    allow_nonfinite: bool,
+    state: &mut FieldState,
+    cells: &mut Vec<CellDamage>,
+) -> Result<(), Failure> {
+    const CHUNK: usize = 8192;
+    if allow_nonfinite {
+        for i in 0..state.eqps.len() {
+            if !state.eqps[i].is_finite() {
+                state.eqps[i] = cells.get(i).map_or(0.0, |c| c.eqps());
+                state.defined[i] = false;
+            }
+        }
+    }
+    let fields_k = IncrementFields::new(
+        k,
+        &state.eqps,
+        &state.triaxiality,
+        &state.lode_angle_param,
+        &state.defined,
+    )
+    .map_err(|e| Failure::data(format!("{}: {e}", series.path().display())))?;
+    if k == 0 {
+        *cells = vec![CellDamage::new(); state.eqps.len()];
+        cells
+            .par_chunks_mut(CHUNK)
+            .enumerate()
+            .try_for_each(|(c, chunk)| {
+                start_cells(
+                    locus,
+                    &fields_k.window(c * CHUNK, chunk.len()),
+                    c * CHUNK,
+                    chunk,
+                )
+            })
+    } else {
+        cells
+            .par_chunks_mut(CHUNK)
+            .enumerate()
+            .try_for_each(|(c, chunk)| {
+                update_cells(
+                    locus,
+                    rule,
+                    &fields_k.window(c * CHUNK, chunk.len()),
+                    c * CHUNK,
+                    chunk,
+                )
+            })
+    }
+    .map_err(|e| Failure::data(format!("{}: {e}", series.path().display())))
 }
 
 fn field_json(series: &Series, fd: &FieldDamage, rule: DamageRule, top: usize) -> Value {
