@@ -219,6 +219,11 @@ def main():
                   commit=sh(["git", "-C", HERE, "rev-parse", "--short", "HEAD"], check=False).stdout.strip(),
                   encodings={})
     os.makedirs(args.scratch, exist_ok=True)
+    if not args.no_peer:
+        # the peer's fixed cost: interpreter start and imports (part of its whole-process times)
+        start = line([PY, "-c", "import vtk, numpy"])
+        result["peer_startup"] = hyperfine([("peer start-up", start)], args.runs)[0]
+        result["peer_startup"]["command"] = start
     for enc in encs:
         d = os.path.join(args.data, enc)
         pvd = os.path.join(d, "series.pvd")
@@ -285,6 +290,10 @@ def main():
                 tr["peer"] = timed[1]
                 tr["peer"]["peak_rss_kb"] = peak_rss_kb(cp)
                 tr["speedup"] = timed[1]["median"] / timed[0]["median"]
+                # CPU time (user + system, hyperfine means): less sensitive to other load on the machine
+                cpu_d = timed[0]["user"] + timed[0]["system"]
+                cpu_p = timed[1]["user"] + timed[1]["system"]
+                tr["cpu_ratio"] = cpu_p / cpu_d if cpu_d > 0 else None
             if args.threads and task == "damage":
                 th = {}
                 for n in (1, 2):
@@ -297,9 +306,9 @@ def main():
             if not args.no_peer:
                 msg += f", peer {timed[1]['median']:.3f} s, speedup {tr['speedup']:.1f}x"
             print(msg, file=sys.stderr)
-        if enc in ("raw", "zlib") and "damage" in er["tasks"]:
-            fl = er["floors"]["cat all files"]["median"]
-            er["damage_over_cat_floor"] = er["tasks"]["damage"]["ductrace"]["median"] / fl
+        if "damage" in er["tasks"]:
+            dt = er["tasks"]["damage"]["ductrace"]["median"]
+            er["damage_over_floor"] = {name: dt / f["median"] for name, f in er["floors"].items()}
         shutil.rmtree(os.path.join(args.scratch, f"{enc}_ductrace"), ignore_errors=True)
         shutil.rmtree(os.path.join(args.scratch, f"{enc}_peer"), ignore_errors=True)
     result["machine"]["load_after"] = open("/proc/loadavg").read().split()[:3]
@@ -312,6 +321,8 @@ def main():
 def summary(r):
     out = [f"{r['data_dir']}: {r['data']['cells']} cells x {r['data']['increments']} increments, "
            f"{r['runs']} runs, load {r['machine']['load_before']} -> {r['machine']['load_after']}"]
+    if "peer_startup" in r:
+        out.append(f"  peer start-up (python, import vtk, numpy): {r['peer_startup']['median']:.3f} s")
     for enc, er in r["encodings"].items():
         out.append(f"  {enc}: {er['files']} files, {er['bytes'] / 1e6:.0f} MB")
         for name, f in er["floors"].items():
@@ -323,14 +334,15 @@ def summary(r):
             if "peer" in t:
                 p = t["peer"]
                 s += (f" | peer {p['median']:.3f} s [{p['min']:.3f}-{p['max']:.3f}] user {p['user']:.2f} "
-                      f"sys {p['system']:.2f} rss {p['peak_rss_kb'] / 1024:.0f} MB | {t['speedup']:.1f}x")
+                      f"sys {p['system']:.2f} rss {p['peak_rss_kb'] / 1024:.0f} MB | {t['speedup']:.1f}x"
+                      f" (cpu {(p['user'] + p['system']) / (d['user'] + d['system']):.1f}x)")
             out.append(s)
             if "threads" in t:
                 th = t["threads"]
                 out.append(f"      threads: 1 -> {th['1']['median']:.3f} s, 2 -> {th['2']['median']:.3f} s, "
                            f"ratio {th['ratio_1_over_2']:.2f}")
-        if "damage_over_cat_floor" in er:
-            out.append(f"    damage / cat floor: {er['damage_over_cat_floor']:.2f}")
+        for name, v in er.get("damage_over_floor", {}).items():
+            out.append(f"    damage / floor ({name}): {v:.2f}")
     return "\n".join(out)
 
 
