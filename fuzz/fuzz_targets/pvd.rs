@@ -10,11 +10,26 @@ use libfuzzer_sys::fuzz_target;
 mod series;
 
 const FILES: &[(&str, &[u8])] = &[
-    ("steps/s0.vtu", include_bytes!("../../fixtures/vtk/good/series_pvd/steps/s0.vtu")),
-    ("steps/s1.vtu", include_bytes!("../../fixtures/vtk/good/series_pvd/steps/s1.vtu")),
-    ("steps/s2.vtu", include_bytes!("../../fixtures/vtk/good/series_pvd/steps/s2.vtu")),
-    ("steps/s3.vtu", include_bytes!("../../fixtures/vtk/good/series_pvd/steps/s3.vtu")),
-    ("legacy.vtk", include_bytes!("../../fixtures/vtk/good/legacy_ascii_51.vtk")),
+    (
+        "steps/s0.vtu",
+        include_bytes!("../../fixtures/vtk/good/series_pvd/steps/s0.vtu"),
+    ),
+    (
+        "steps/s1.vtu",
+        include_bytes!("../../fixtures/vtk/good/series_pvd/steps/s1.vtu"),
+    ),
+    (
+        "steps/s2.vtu",
+        include_bytes!("../../fixtures/vtk/good/series_pvd/steps/s2.vtu"),
+    ),
+    (
+        "steps/s3.vtu",
+        include_bytes!("../../fixtures/vtk/good/series_pvd/steps/s3.vtu"),
+    ),
+    (
+        "legacy.vtk",
+        include_bytes!("../../fixtures/vtk/good/legacy_ascii_51.vtk"),
+    ),
 ];
 
 fuzz_target!(|data: &[u8]| {

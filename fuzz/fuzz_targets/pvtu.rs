@@ -9,9 +9,18 @@ use libfuzzer_sys::fuzz_target;
 mod series;
 
 const PIECES: &[(&str, &[u8])] = &[
-    ("block_0.vtu", include_bytes!("../../fixtures/vtk/good/pvtu/block_0.vtu")),
-    ("block_1.vtu", include_bytes!("../../fixtures/vtk/good/pvtu/block_1.vtu")),
-    ("block_2.vtu", include_bytes!("../../fixtures/vtk/good/pvtu/block_2.vtu")),
+    (
+        "block_0.vtu",
+        include_bytes!("../../fixtures/vtk/good/pvtu/block_0.vtu"),
+    ),
+    (
+        "block_1.vtu",
+        include_bytes!("../../fixtures/vtk/good/pvtu/block_1.vtu"),
+    ),
+    (
+        "block_2.vtu",
+        include_bytes!("../../fixtures/vtk/good/pvtu/block_2.vtu"),
+    ),
 ];
 
 fuzz_target!(|data: &[u8]| {

@@ -12,7 +12,11 @@ fuzz_target!(|data: &[u8]| {
         return;
     };
     if let Ok(s) = text.parse::<Selector>() {
-        assert_eq!(s.to_string().parse::<Selector>().ok(), Some(s.clone()), "{text:?}");
+        assert_eq!(
+            s.to_string().parse::<Selector>().ok(),
+            Some(s.clone()),
+            "{text:?}"
+        );
     }
     if let Ok(s) = text.parse::<Stop>() {
         assert_eq!(s.to_string().parse::<Stop>().ok(), Some(s), "{text:?}");

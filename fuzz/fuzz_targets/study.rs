@@ -8,7 +8,9 @@ fuzz_target!(|data: &[u8]| {
     let Ok(text) = std::str::from_utf8(data) else {
         return;
     };
-    if let Ok(study) = ductrace_campaign::Study::parse(text, std::path::Path::new("fuzz/study.toml")) {
+    if let Ok(study) =
+        ductrace_campaign::Study::parse(text, std::path::Path::new("fuzz/study.toml"))
+    {
         for s in &study.specimens {
             let _ = study.result_path(s);
         }

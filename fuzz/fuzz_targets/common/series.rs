@@ -11,10 +11,7 @@ use ductrace_vtk::Series;
 fn folder(kind: &str, files: &[(&str, &[u8])]) -> &'static PathBuf {
     static DIR: OnceLock<PathBuf> = OnceLock::new();
     DIR.get_or_init(|| {
-        let dir = std::env::temp_dir().join(format!(
-            "ductrace-fuzz-{kind}-{}",
-            std::process::id()
-        ));
+        let dir = std::env::temp_dir().join(format!("ductrace-fuzz-{kind}-{}", std::process::id()));
         for (name, bytes) in files {
             let p = dir.join(name);
             std::fs::create_dir_all(p.parent().expect("member path has a folder"))
