@@ -377,6 +377,25 @@ fn interrupted_export(signal: &str) {
         let (code, err) = ductrace(&["probe", s(&out.join("derived.pvd"))]);
         assert_eq!(code, 0, "{signal}: derived.pvd: {err}");
     }
+    // Running the export again into the same folder completes it and removes the
+    // temporary file the interrupted run left (a shorter series keeps the test quick).
+    let short = long_series(&d.path().join("again"), 1);
+    let (code, err) = ductrace(&["export", s(&short), "-o", s(&out), "-q"]);
+    assert_eq!(code, 0, "{signal}: export again: {err}");
+    let left: Vec<String> = std::fs::read_dir(&out)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().into_string().unwrap())
+        .filter(|n| n.ends_with(".tmp"))
+        .collect();
+    assert!(
+        left.is_empty(),
+        "{signal}: temporary files remain: {left:?}"
+    );
+    let (code, err) = ductrace(&["probe", s(&out.join("derived.pvd"))]);
+    assert_eq!(
+        code, 0,
+        "{signal}: derived.pvd after the second export: {err}"
+    );
 }
 
 #[test]

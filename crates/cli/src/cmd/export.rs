@@ -53,6 +53,7 @@ pub fn run(args: &ExportArgs, quiet: bool) -> Result<(), Failure> {
         output::refuse_inputs(&dir.join(file_name(info.index)), &refs)?;
     }
     std::fs::create_dir_all(dir).map_err(|e| Failure::io(dir, "create", e))?;
+    remove_stale_temporaries(dir);
     let mesh = series.mesh();
     let cells = CellsRef::of(mesh);
     let fields = ductrace_track::fields::resolve(&series, &options, true, false)?;
@@ -197,6 +198,22 @@ pub fn run(args: &ExportArgs, quiet: bool) -> Result<(), Failure> {
         );
     }
     Ok(())
+}
+
+/// Removes the hidden temporary files an interrupted export left in `dir`
+/// (`.derived_NNNN.vtu.PID.tmp`, `.derived.pvd.PID.tmp`: the writer's temporary names); they
+/// are never complete outputs. Best effort: errors are ignored.
+fn remove_stale_temporaries(dir: &std::path::Path) {
+    let Ok(entries) = std::fs::read_dir(dir) else {
+        return;
+    };
+    for e in entries.flatten() {
+        let name = e.file_name();
+        let name = name.to_string_lossy();
+        if name.starts_with(".derived") && name.ends_with(".tmp") && e.path().is_file() {
+            let _ = std::fs::remove_file(e.path());
+        }
+    }
 }
 
 fn file_name(k: usize) -> String {
