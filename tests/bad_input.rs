@@ -1165,3 +1165,60 @@ fn pvd_same_file_twice_or_nonfinite_timestep() {
         );
     }
 }
+
+/// σ_vm → 0 between plastic increments: where the stress is zero or hydrostatic at an end
+/// of a segment with plastic flow, η (and θ̄) is undefined there and the trapezoid average
+/// cannot be formed (Bao & Wierzbicki 2004's average needs η along the whole path): refused,
+/// naming the entity, the increment and the plastic increment. Before it, the history works.
+#[test]
+fn vanishing_stress_under_plastic_flow() {
+    let d = tempfile::tempdir().unwrap();
+    // (tag, stress at increment 2, eqps per increment, segment named in the message)
+    let cases: [(&str, [f64; 6], [f64; 4], &str); 3] = [
+        (
+            "zero",
+            [0.0; 6],
+            [0.0, 0.1, 0.2, 0.3],
+            "between increments 1 and 2",
+        ),
+        (
+            "hydro",
+            [50.0, 50.0, 50.0, 0.0, 0.0, 0.0],
+            [0.0, 0.1, 0.2, 0.3],
+            "between increments 1 and 2",
+        ),
+        (
+            "unload",
+            [0.0; 6],
+            [0.0, 0.1, 0.1, 0.3],
+            "between increments 2 and 3",
+        ),
+    ];
+    for (tag, st2, eq, seg) in cases {
+        let mut list = Vec::new();
+        let names: Vec<String> = (0..4).map(|i| format!("{tag}{i}.vtu")).collect();
+        for i in 0..4 {
+            let st = if i == 2 {
+                st2
+            } else {
+                uniaxial(100.0 * (i + 1) as f64)
+            };
+            write(d.path(), &names[i], &vtu(&[(st, eq[i])], 0.0, false));
+            list.push((i as f64, 0, names[i].as_str()));
+        }
+        let p = write(d.path(), &format!("{tag}.pvd"), &pvd(&list));
+        check(
+            &history(&p, &["--at", "cell:0"]),
+            1,
+            &format!("{tag}.pvd"),
+            &[
+                "cell 0",
+                "triaxiality is undefined at increment 2",
+                "plastic strain grows",
+                seg,
+            ],
+        );
+        let (code, _, err) = run(&history(&p, &["--at", "cell:0", "--until", "increment:1"]));
+        assert_eq!(code, 0, "{tag}: {err}");
+    }
+}
