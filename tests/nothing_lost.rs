@@ -435,3 +435,24 @@ fn one_failing_specimen_does_not_lose_the_others() {
         }
     }
 }
+
+/// A command that fails leaves an existing output file as it was (the output is written
+/// only after the work succeeded, atomically), and leaves no temporary file behind.
+#[test]
+fn a_failing_command_keeps_the_old_output() {
+    let d = tempfile::tempdir().unwrap();
+    let old = d.path().join("history.csv");
+    std::fs::write(&old, "previous result\n").unwrap();
+    let bad = root().join("fixtures/vtk/bad/corrupt_zlib.vtu");
+    let good = root().join("fixtures/vtk/good/hex_appended_zlib.vtu");
+    for (input, at) in [(&bad, "max:sigma_vm"), (&good, "cell:999")] {
+        let (code, err) = ductrace(&["history", s(input), "--at", at, "-o", s(&old)]);
+        assert_eq!(code, 1, "{err}");
+        assert_eq!(std::fs::read_to_string(&old).unwrap(), "previous result\n");
+    }
+    let names: Vec<String> = std::fs::read_dir(d.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name().into_string().unwrap())
+        .collect();
+    assert_eq!(names, ["history.csv"]);
+}
