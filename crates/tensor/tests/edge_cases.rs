@@ -1,6 +1,7 @@
 //! Numeric edge cases of the stress-state measures: σ_vm → 0 (states approaching the
 //! hydrostatic axis), ξ at ±1 ± round-off, huge and tiny magnitudes, Float32-rounded
-//! inputs, and the property that no finite input yields a NaN anywhere.
+//! inputs, and the property that no finite input yields a NaN anywhere (in the single-tensor
+//! path and in the batch kernels).
 //!
 //! References: the definitions of η (Bao & Wierzbicki 2004), ξ and θ̄ (Bai & Wierzbicki
 //! 2008) as in FIELD-NOTES §1; the closed-form values of uniaxial tension (η = 1/3, θ̄ = 1),
@@ -325,5 +326,17 @@ proptest! {
         }
         let b = batch::state_of(&c, &ComponentOrder::VTK).unwrap();
         prop_assert_eq!(b, st);
+        // the fused full-field kernel gives the same numbers on the same extreme inputs
+        let m = batch::measures_vtk6(&c);
+        prop_assert_eq!(m.sigma_h, st.sigma_h);
+        prop_assert_eq!(m.sigma_vm, st.sigma_vm);
+        match (m.shape, st.lode()) {
+            (Some(a), Some(l)) => {
+                prop_assert_eq!(a.triaxiality, l.triaxiality);
+                prop_assert_eq!(a.lode_angle_param, l.lode_angle_param);
+            }
+            (None, None) => {}
+            (a, l) => prop_assert!(false, "kernel {a:?} vs state {l:?}"),
+        }
     }
 }
