@@ -779,10 +779,6 @@ fn stop_outside_the_series() {
             "eqps:100",
             &["stop eqps:100 is never reached at cell 0", "0 to 0.01"],
         ),
-        (
-            "gauge:1",
-            &["a gauge stop needs a gauge definition", "--gauge"],
-        ),
     ];
     for (stop, needles) in cases {
         check(
@@ -792,6 +788,13 @@ fn stop_outside_the_series() {
             needles,
         );
     }
+    // A gauge stop without a gauge is a usage error, found before any file is read.
+    check(
+        &history(&p, &["--at", "cell:0", "--until", "gauge:1"]),
+        2,
+        "",
+        &["--until gauge:u needs a gauge definition", "--gauge"],
+    );
 }
 
 #[test]

@@ -35,6 +35,11 @@ pub fn request(args: &HistoryArgs) -> Result<HistoryRequest, Failure> {
         Some(g) => Some(g.parse::<GaugeSpec>()?),
         None => None,
     };
+    if matches!(req.stop, Some(Stop::Gauge(_))) && req.gauge.is_none() {
+        return Err(Failure::usage(
+            "--until gauge:U needs a gauge definition: add --gauge X1,Y1,Z1:X2,Y2,Z2 or --gauge X,Y,Z/AXIS",
+        ));
+    }
     req.band = args.band;
     req.fields = super::field_options(&args.fields)?;
     Ok(req)
