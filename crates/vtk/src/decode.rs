@@ -257,6 +257,23 @@ impl Sink for F64Sink<'_> {
 /// by the caller before decoding.
 pub(crate) struct I64Sink<'a>(pub &'a mut Vec<i64>);
 
+/// Appends integers that always fit in i64 (every type but UInt64): no range check, so the
+/// loop vectorises.
+macro_rules! int_extend {
+    ($bytes:expr, $out:expr, $t:ty, $n:literal, $big:expr) => {{
+        let it = $bytes.chunks_exact($n).map(|c| {
+            let mut a = [0u8; $n];
+            a.copy_from_slice(c);
+            if $big {
+                <$t>::from_be_bytes(a)
+            } else {
+                <$t>::from_le_bytes(a)
+            }
+        });
+        $out.extend(it.map(i64::from));
+    }};
+}
+
 macro_rules! int_loop {
     ($bytes:expr, $out:expr, $t:ty, $n:literal, $big:expr) => {{
         for c in $bytes.chunks_exact($n) {
@@ -281,11 +298,11 @@ impl Sink for I64Sink<'_> {
         match ty {
             ScalarType::Int8 => out.extend(bytes.iter().map(|&b| i64::from(b as i8))),
             ScalarType::UInt8 => out.extend(bytes.iter().map(|&b| i64::from(b))),
-            ScalarType::Int16 => int_loop!(bytes, out, i16, 2, big),
-            ScalarType::UInt16 => int_loop!(bytes, out, u16, 2, big),
-            ScalarType::Int32 => int_loop!(bytes, out, i32, 4, big),
-            ScalarType::UInt32 => int_loop!(bytes, out, u32, 4, big),
-            ScalarType::Int64 => int_loop!(bytes, out, i64, 8, big),
+            ScalarType::Int16 => int_extend!(bytes, out, i16, 2, big),
+            ScalarType::UInt16 => int_extend!(bytes, out, u16, 2, big),
+            ScalarType::Int32 => int_extend!(bytes, out, i32, 4, big),
+            ScalarType::UInt32 => int_extend!(bytes, out, u32, 4, big),
+            ScalarType::Int64 => int_extend!(bytes, out, i64, 8, big),
             ScalarType::UInt64 => int_loop!(bytes, out, u64, 8, big),
             ScalarType::Float32 | ScalarType::Float64 => {
                 return Err(format!("integer data expected, found {ty}"));
