@@ -278,7 +278,8 @@ def main():
                     tr["answer"] = json.loads(rd.stdout) if task == "damage" else {
                         "cell": json.loads(rd.stdout)["point"]["id"],
                         "summary": json.loads(rd.stdout)["summary"]}
-            print(f"[{enc}] {task}: answers agree ({time.time() - t0:.1f} s)", file=sys.stderr)
+            state = "ran (no peer)" if args.no_peer else "answers agree"
+            print(f"[{enc}] {task}: {state} ({time.time() - t0:.1f} s)", file=sys.stderr)
             cmds = [("ductrace", line(cd))] + ([] if args.no_peer else [("peer", line(cp))])
             prep = None
             if task == "export":

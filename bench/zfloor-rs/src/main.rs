@@ -1,6 +1,6 @@
 //! Decompression floor for zlib-compressed appended VTU files: inflate only the blocks of the named
 //! arrays, in parallel over blocks (rayon), into a reused buffer; no XML parser, no conversion, no
-//! arithmetic. Uses flate2 with the backend chosen at build time (miniz_oxide by default, zlib-rs with
+//! arithmetic; one zlib state per worker, reset between blocks. Uses flate2 with the backend chosen at build time (miniz_oxide by default, zlib-rs with
 //! `--features zlib-rs`), the same library ductrace's reader uses.
 //!
 //! Usage: zfloor ARRAY[,ARRAY...] FILE.vtu [FILE.vtu ...]   (prints the uncompressed byte count)
@@ -55,11 +55,15 @@ fn main() {
             starts.push(pos);
             let ulen = if last == 0 { nb * bs } else { (nb - 1) * bs + last };
             buf.resize(ulen, 0);
-            buf.par_chunks_mut(bs).enumerate().for_each(|(k, dst)| {
-                let mut d = flate2::Decompress::new(true);
-                d.decompress(&m[starts[k]..starts[k + 1]], dst, flate2::FlushDecompress::Finish)
-                    .expect("inflate");
-            });
+            // one zlib state per worker, reset between blocks
+            buf.par_chunks_mut(bs).enumerate().for_each_init(
+                || flate2::Decompress::new(true),
+                |d, (k, dst)| {
+                    d.reset(true);
+                    d.decompress(&m[starts[k]..starts[k + 1]], dst, flate2::FlushDecompress::Finish)
+                        .expect("inflate");
+                },
+            );
             total += ulen;
         }
     }
