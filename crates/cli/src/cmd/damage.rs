@@ -414,7 +414,37 @@ pub fn run(args: &DamageArgs, quiet: bool) -> Result<(), Failure> {
         let series = Series::open(&args.input)?;
         let options = super::field_options(&args.fields)?;
         let fd = field_damage(&series, &options, &locus, rule, |_, _, _| Ok(()))?;
-        let v = field_json(&series, &fd, rule, 5);
+        let mut v = field_json(&series, &fd, rule, 5);
+        // The history of the critical entity (the first to reach D = 1, else the largest D),
+        // read back for that entity alone, with its damage per increment.
+        let critical = v["first"]["id"].as_u64().or(v["max"]["id"].as_u64());
+        if let Some(id) = critical {
+            let id = id as usize;
+            let mut req = HistoryRequest::new(match fd.location {
+                Location::Cell => Selector::Cell(id),
+                Location::Point => Selector::Point(id),
+            });
+            req.fields = options.clone();
+            req.fields.location = Some(fd.location);
+            let h = ductrace_track::extract(&series, &req)?;
+            let eqps: Vec<f64> = h.rows.iter().map(|r| r.eqps).collect();
+            let eta: Vec<Option<f64>> = h.rows.iter().map(|r| r.triaxiality).collect();
+            let theta: Vec<Option<f64>> = h.rows.iter().map(|r| r.lode_angle_param).collect();
+            let d = accumulate(&locus, rule, &eqps, &eta, &theta)
+                .map_err(|e| Failure::data(format!("{}: {e}", args.input.display())))?;
+            let mut doc = crate::cmd::history::to_json(&h, false);
+            if let Some(rows) = doc["rows"].as_array_mut() {
+                for (row, dk) in rows.iter_mut().zip(&d.damage) {
+                    row["damage"] = json!(dk);
+                }
+            }
+            v["history"] = json!({
+                "location": fd.location.to_string(),
+                "id": id,
+                "rows": doc["rows"],
+                "summary": doc["summary"],
+            });
+        }
         let text = match args.format {
             Format::Json => json_text(&v)?,
             _ => field_text(&v, &series, &fd),
