@@ -6,7 +6,7 @@
 set -u
 secs=${1:-120}
 [ $# -gt 0 ] && shift
-targets=${*:-"vtu_header appended legacy pvtu pvd study spec"}
+targets=${*:-"vtu_header appended legacy pvtu pvd study spec table"}
 mkdir -p logs
 for t in $targets; do
     mkdir -p "corpus-work/$t"

@@ -48,3 +48,15 @@ pub fn main() -> ExitCode {
         }
     }
 }
+
+/// Parses bytes as a calibration table, both as CSV and as JSON; for fuzzing. Returns the
+/// number of points read. Never panics.
+#[doc(hidden)]
+pub fn fuzz_table(bytes: &[u8]) -> usize {
+    let Ok(text) = std::str::from_utf8(bytes) else {
+        return 0;
+    };
+    let csv = cmd::fit::parse_table(text, false, "fuzz.csv").map_or(0, |(p, _)| p.len());
+    let json = cmd::fit::parse_table(text, true, "fuzz.json").map_or(0, |(p, _)| p.len());
+    csv + json
+}

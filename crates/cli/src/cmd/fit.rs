@@ -42,12 +42,17 @@ type TableInput = (Vec<CalibrationPoint>, Option<(f64, f64)>);
 /// Calibration points and hardening read from a table file (CSV or JSON as `table` writes).
 fn read_table(path: &Path) -> Result<TableInput, Failure> {
     let text = std::fs::read_to_string(path).map_err(|e| Failure::io(path, "read", e))?;
-    let bad = |m: String| Failure::data(format!("{}: {m}", path.display()));
     let is_json = path
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("json"));
+    parse_table(&text, is_json, &path.display().to_string())
+}
+
+/// Parses table text (CSV, or JSON when `is_json`); `name` names the file in messages.
+pub fn parse_table(text: &str, is_json: bool, name: &str) -> Result<TableInput, Failure> {
+    let bad = |m: String| Failure::data(format!("{name}: {m}"));
     if is_json {
-        let v: Value = serde_json::from_str(&text).map_err(|e| bad(format!("not JSON: {e}")))?;
+        let v: Value = serde_json::from_str(text).map_err(|e| bad(format!("not JSON: {e}")))?;
         let rows = v["rows"]
             .as_array()
             .or_else(|| v.as_array())

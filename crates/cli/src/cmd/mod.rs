@@ -4,7 +4,7 @@ mod completions;
 mod damage;
 mod demo;
 mod export;
-mod fit;
+pub(crate) mod fit;
 mod history;
 mod probe;
 mod report;
