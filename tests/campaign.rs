@@ -15,6 +15,8 @@
 
 #![allow(clippy::unwrap_used)]
 
+mod common;
+
 use std::path::PathBuf;
 
 use assert_cmd::Command;
@@ -37,6 +39,7 @@ fn history(result: &str, args: &[&str]) -> Value {
         .arg("history")
         .arg(campaign(result))
         .args(args)
+        .args(common::campaign_field_options())
         .args(["--format", "json", "-q"])
         .output()
         .unwrap();

@@ -6,6 +6,8 @@
 
 #![allow(clippy::unwrap_used)]
 
+mod common;
+
 use std::path::PathBuf;
 
 use assert_cmd::Command;
@@ -168,6 +170,7 @@ fn full_field_damage() {
     .unwrap();
     let result = root().join("fixtures/campaign/nrb_r4/nrb_r4.pvd");
     let args = |extra: &[&str]| -> Value {
+        let names = common::campaign_field_options();
         let mut a = vec![
             "damage",
             result.to_str().unwrap(),
@@ -178,6 +181,7 @@ fn full_field_damage() {
             "--format",
             "json",
         ];
+        a.extend(names.iter().map(String::as_str));
         a.extend_from_slice(extra);
         run_json(&a)
     };
@@ -214,10 +218,12 @@ fn export_round_trip() {
             out.to_str().unwrap(),
         ])
         .args(["--location", "cell", "-q"])
+        .args(common::campaign_field_options())
         .assert()
         .success();
     assert!(out.join("derived.pvd").is_file());
-    let a = run_json(&[
+    let names = common::campaign_field_options();
+    let mut history_args = vec![
         "history",
         result.to_str().unwrap(),
         "--at",
@@ -226,7 +232,9 @@ fn export_round_trip() {
         "cell",
         "--format",
         "json",
-    ]);
+    ];
+    history_args.extend(names.iter().map(String::as_str));
+    let a = run_json(&history_args);
     let b = run_json(&[
         "history",
         out.join("derived.pvd").to_str().unwrap(),

@@ -9,6 +9,8 @@
 
 #![allow(clippy::unwrap_used)]
 
+mod common;
+
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 use std::process::Stdio;
@@ -208,6 +210,11 @@ fn inputs_are_never_modified() {
         ],
     ];
     for c in &commands {
+        // Commands on the campaign's smooth-bar result name its arrays as the study does.
+        let mut c = c.clone();
+        if c[1].contains("srb") {
+            c.extend(common::campaign_field_options());
+        }
         let a: Vec<&str> = c.iter().map(String::as_str).collect();
         let (code, err) = ductrace(&a);
         assert_eq!(code, 0, "{a:?}: {err}");
@@ -298,6 +305,7 @@ fn interrupted_export(signal: &str) {
     let mut child = std::process::Command::cargo_bin("ductrace")
         .unwrap()
         .args(["export", s(&input), "-o", s(&out), "-q"])
+        .args(common::campaign_field_options())
         .stdout(Stdio::null())
         .stderr(Stdio::piped())
         .spawn()
@@ -380,7 +388,10 @@ fn interrupted_export(signal: &str) {
     // Running the export again into the same folder completes it and removes the
     // temporary file the interrupted run left (a shorter series keeps the test quick).
     let short = long_series(&d.path().join("again"), 1);
-    let (code, err) = ductrace(&["export", s(&short), "-o", s(&out), "-q"]);
+    let names = common::campaign_field_options();
+    let mut again = vec!["export", s(&short), "-o", s(&out), "-q"];
+    again.extend(names.iter().map(String::as_str));
+    let (code, err) = ductrace(&again);
     assert_eq!(code, 0, "{signal}: export again: {err}");
     let left: Vec<String> = std::fs::read_dir(&out)
         .unwrap()

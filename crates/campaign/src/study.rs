@@ -16,7 +16,7 @@
 //! kind = "round-bar"                      # round-bar | plate | shear | other
 //! notch = { a = 4.0, R = 4.0 }            # round bar a, R; plate t, R
 //! measured = { d0 = 8.0, df = 6.1 }       # round bar d0, df; plate t0, tf
-//! fields = { stress = "S", eqps = "PEEQ", displacement = "U" }
+//! fields = { stress = "stress_ip", eqps = "eqps_ip", displacement = "u_nodal" }
 //! band = 8                                # optional: spread over the 8 nearest entities
 //! ```
 //!
@@ -475,7 +475,7 @@ stop = { gauge = 0.5 }
 kind = "round-bar"
 notch = { a = 4.0, R = 2.0 }
 measured = { d0 = 8.0, df = 6.0 }
-fields = { stress = "S", eqps = "PEEQ" }
+fields = { stress = "stress_ip", eqps = "eqps_ip" }
 
 [[specimen]]
 name = "b"
@@ -495,7 +495,7 @@ notch = { t = 2.0, R = 1.0 }
         assert_eq!(a.notch, Some(Notch::Round { a: 4.0, r: 2.0 }));
         assert_eq!(s.result_path(a), Path::new("dir/a/a.pvd"));
         assert_eq!(s.result_path(&s.specimens[1]), Path::new("/abs/b"));
-        assert_eq!(a.fields.stress.as_deref(), Some("S"));
+        assert_eq!(a.fields.stress.as_deref(), Some("stress_ip"));
         assert_eq!(a.gauge_measured(), Some(0.5));
     }
 

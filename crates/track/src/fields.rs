@@ -127,7 +127,7 @@ fn field_error(path: &Path, message: String) -> TrackError {
     }
 }
 
-/// A list of the arrays of a series, for messages: `S (cell, 6), PEEQ (point, 1)`.
+/// A list of the arrays of a series, for messages: `stress (cell, 6), eqps (point, 1)`.
 pub fn list_arrays(fields: &[FieldInfo]) -> String {
     if fields.is_empty() {
         return "the file has no arrays".to_string();

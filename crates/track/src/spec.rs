@@ -264,7 +264,7 @@ mod tests {
 
     #[test]
     fn display_round_trips() {
-        for s in ["cell:3", "point:9", "max:PEEQ", "near:1,2,3"] {
+        for s in ["cell:3", "point:9", "max:damage", "near:1,2,3"] {
             assert_eq!(s.parse::<Selector>().unwrap().to_string(), s);
         }
         for s in ["increment:4", "time:0.5", "eqps:0.3", "gauge:1.25"] {

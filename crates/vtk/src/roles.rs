@@ -6,7 +6,7 @@
 //! - stress: `stress`, `sigma`, `s`, `cauchy_stress`; 6 or 9 components. A stress with 3 or 4
 //!   components (a 2-D model's in-plane stress) is an **error**: the out-of-plane component is
 //!   needed and is never taken as zero;
-//! - eqps: `eqps`, `equivalent_plastic_strain`, `peeq`, `epbar`, `plastic_strain_equivalent`;
+//! - eqps: `eqps`, `equivalent_plastic_strain`, `epbar`, `plastic_strain_equivalent`;
 //!   1 component;
 //! - plastic strain: `plastic_strain`, `pe`, `ep`; 6 or 9 components;
 //! - displacement: `displacement`, `displacements`, `u`, `disp`; 3 components;
@@ -88,7 +88,6 @@ const EQPS: Role = Role {
     generic: &[
         "eqps",
         "equivalentplasticstrain",
-        "peeq",
         "epbar",
         "plasticstrainequivalent",
     ],
@@ -268,7 +267,7 @@ mod tests {
         let fields = vec![
             f("Stress", Location::Point, 6, &[]),
             f("Stress", Location::Cell, 6, &[]),
-            f("PEEQ", Location::Cell, 1, &[]),
+            f("Equivalent_Plastic_Strain", Location::Cell, 1, &[]),
             f("U", Location::Point, 3, &[]),
             f("plastic-strain", Location::Cell, 9, &[]),
         ];
@@ -280,7 +279,7 @@ mod tests {
                 location: Location::Cell
             })
         );
-        assert_eq!(r.eqps.unwrap().name, "PEEQ");
+        assert_eq!(r.eqps.unwrap().name, "Equivalent_Plastic_Strain");
         assert_eq!(r.displacement.unwrap().location, Location::Point);
         assert_eq!(r.plastic_strain.unwrap().name, "plastic-strain");
     }
