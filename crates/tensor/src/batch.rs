@@ -29,8 +29,8 @@ pub fn state_of(values: &[f64], order: &ComponentOrder) -> Result<StressState, T
 ///
 /// The same quantities as [`StressState`] (FIELD-NOTES §1: σ_h = tr σ/3, σ_vm = √(3 J2),
 /// η = σ_h/σ_vm (Bao & Wierzbicki 2004), θ̄ = 1 − (2/π) arccos ξ with ξ = (27/2) J3/σ_vm³
-/// clamped to [−1, 1] (Bai & Wierzbicki 2008)), computed with the same operations in the
-/// same order, so every value is bit-identical to [`StressState::from_vtk6`]; the Lode
+/// clamped to [−1, 1] (Bai & Wierzbicki 2008)), computed by the same function as
+/// [`StressState::from_vtk6`], so every value is bit-identical to it; the Lode
 /// parameter μ (one `tan` per tuple) is left out.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Measures {
@@ -55,45 +55,13 @@ pub struct ShapeMeasures {
 /// finiteness of `c` is the caller's to check (see [`measures_of`]).
 #[inline]
 pub fn measures_vtk6(c: &[f64; 6]) -> Measures {
-    // Mirrors StressState::from_vtk6 operation by operation (see the test
-    // `measures_are_bit_identical_to_stress_state`).
-    let scale = c.iter().fold(0.0_f64, |acc, v| acc.max(v.abs()));
-    if scale == 0.0 || !scale.is_finite() {
-        return Measures {
-            sigma_h: 0.0,
-            sigma_vm: 0.0,
-            shape: None,
-        };
-    }
-    // As StressState: multiply by 1/scale in the normal range, divide outside it.
-    let [xx, yy, zz, xy, yz, xz] = if (1e-300..=1e300).contains(&scale) {
-        let inv = 1.0 / scale;
-        c.map(|v| v * inv)
-    } else {
-        c.map(|v| v / scale)
-    };
-    let h = (xx + yy + zz) / 3.0;
-    let (dx, dy, dz) = (xx - h, yy - h, zz - h);
-    let j2 = 0.5 * (dx * dx + dy * dy + dz * dz) + xy * xy + yz * yz + xz * xz;
-    let vm = (3.0 * j2).sqrt();
-    let sigma_h = h * scale;
-    let sigma_vm = vm * scale;
-    if vm <= crate::DEGENERATE_REL_TOL {
-        return Measures {
-            sigma_h,
-            sigma_vm,
-            shape: None,
-        };
-    }
-    let j3 = dx * (dy * dz - yz * yz) - xy * (xy * dz - yz * xz) + xz * (xy * yz - dy * xz);
-    let xi = (13.5 * j3 / (vm * vm * vm)).clamp(-1.0, 1.0);
-    let lode_angle_param = 1.0 - (2.0 / std::f64::consts::PI) * xi.acos();
+    let core = crate::state::invariants(c);
     Measures {
-        sigma_h,
-        sigma_vm,
-        shape: Some(ShapeMeasures {
-            triaxiality: h / vm,
-            lode_angle_param,
+        sigma_h: core.sigma_h,
+        sigma_vm: core.sigma_vm,
+        shape: core.shape.ok().map(|s| ShapeMeasures {
+            triaxiality: s.triaxiality,
+            lode_angle_param: s.lode_angle_param,
         }),
     }
 }

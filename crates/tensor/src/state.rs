@@ -88,50 +88,23 @@ impl StressState {
     /// function does not panic.
     #[inline]
     pub fn from_vtk6(c: &[f64; 6]) -> StressState {
-        let scale = c.iter().fold(0.0_f64, |acc, v| acc.max(v.abs()));
-        if scale == 0.0 || !scale.is_finite() {
-            return StressState {
-                sigma_h: 0.0,
-                sigma_vm: 0.0,
-                shape: Shape::Undefined(Undefined::ZeroStress),
-            };
-        }
-        // Multiplying by 1/scale is exact enough in the normal range; outside it 1/scale
-        // overflows (subnormal scale) or is itself subnormal (scale near f64::MAX), so divide.
-        let [xx, yy, zz, xy, yz, xz] = if (1e-300..=1e300).contains(&scale) {
-            let inv = 1.0 / scale;
-            c.map(|v| v * inv)
-        } else {
-            c.map(|v| v / scale)
+        let core = invariants(c);
+        let shape = match core.shape {
+            Ok(s) => {
+                let lode_param = -(3.0_f64.sqrt()) * (PI * s.lode_angle_param / 6.0).tan();
+                Shape::Defined(Lode {
+                    triaxiality: s.triaxiality,
+                    xi: s.xi,
+                    lode_angle_param: s.lode_angle_param,
+                    lode_param: lode_param.clamp(-1.0, 1.0),
+                })
+            }
+            Err(u) => Shape::Undefined(u),
         };
-        let h = (xx + yy + zz) / 3.0;
-        let (dx, dy, dz) = (xx - h, yy - h, zz - h);
-        // J2 = s:s/2 with the off-diagonal terms counted twice.
-        let j2 = 0.5 * (dx * dx + dy * dy + dz * dz) + xy * xy + yz * yz + xz * xz;
-        let vm = (3.0 * j2).sqrt();
-        let sigma_h = h * scale;
-        let sigma_vm = vm * scale;
-        if vm <= DEGENERATE_REL_TOL {
-            return StressState {
-                sigma_h,
-                sigma_vm,
-                shape: Shape::Undefined(Undefined::Hydrostatic),
-            };
-        }
-        // J3 = det s.
-        let j3 = dx * (dy * dz - yz * yz) - xy * (xy * dz - yz * xz) + xz * (xy * yz - dy * xz);
-        let xi = (13.5 * j3 / (vm * vm * vm)).clamp(-1.0, 1.0);
-        let lode_angle_param = 1.0 - (2.0 / PI) * xi.acos();
-        let lode_param = -(3.0_f64.sqrt()) * (PI * lode_angle_param / 6.0).tan();
         StressState {
-            sigma_h,
-            sigma_vm,
-            shape: Shape::Defined(Lode {
-                triaxiality: h / vm,
-                xi,
-                lode_angle_param,
-                lode_param: lode_param.clamp(-1.0, 1.0),
-            }),
+            sigma_h: core.sigma_h,
+            sigma_vm: core.sigma_vm,
+            shape,
         }
     }
 
@@ -187,5 +160,71 @@ impl StressState {
             Some(xi) if xi != 0.0 => 2.0 / 27.0 * xi * self.sigma_vm.powi(3),
             _ => 0.0,
         }
+    }
+}
+
+/// σ_h, σ_vm, η, ξ and θ̄ of one tensor: the computation shared by [`StressState`] and the
+/// batch kernels ([`crate::batch::measures_vtk6`]), so both give bit-identical values.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Invariants {
+    pub(crate) sigma_h: f64,
+    pub(crate) sigma_vm: f64,
+    pub(crate) shape: Result<ShapeCore, Undefined>,
+}
+
+/// η, ξ and θ̄ of a tensor with σ_vm > 0.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct ShapeCore {
+    pub(crate) triaxiality: f64,
+    pub(crate) xi: f64,
+    pub(crate) lode_angle_param: f64,
+}
+
+/// The invariants of six components in VTK's order (see the module doc for the formulas and
+/// the scaling); finite input is the caller's to ensure, non-finite input gives a value
+/// without panicking.
+#[inline]
+pub(crate) fn invariants(c: &[f64; 6]) -> Invariants {
+    let scale = c.iter().fold(0.0_f64, |acc, v| acc.max(v.abs()));
+    if scale == 0.0 || !scale.is_finite() {
+        return Invariants {
+            sigma_h: 0.0,
+            sigma_vm: 0.0,
+            shape: Err(Undefined::ZeroStress),
+        };
+    }
+    // Multiplying by 1/scale is exact enough in the normal range; outside it 1/scale
+    // overflows (subnormal scale) or is itself subnormal (scale near f64::MAX), so divide.
+    let [xx, yy, zz, xy, yz, xz] = if (1e-300..=1e300).contains(&scale) {
+        let inv = 1.0 / scale;
+        c.map(|v| v * inv)
+    } else {
+        c.map(|v| v / scale)
+    };
+    let h = (xx + yy + zz) / 3.0;
+    let (dx, dy, dz) = (xx - h, yy - h, zz - h);
+    // J2 = s:s/2 with the off-diagonal terms counted twice.
+    let j2 = 0.5 * (dx * dx + dy * dy + dz * dz) + xy * xy + yz * yz + xz * xz;
+    let vm = (3.0 * j2).sqrt();
+    let sigma_h = h * scale;
+    let sigma_vm = vm * scale;
+    if vm <= DEGENERATE_REL_TOL {
+        return Invariants {
+            sigma_h,
+            sigma_vm,
+            shape: Err(Undefined::Hydrostatic),
+        };
+    }
+    // J3 = det s.
+    let j3 = dx * (dy * dz - yz * yz) - xy * (xy * dz - yz * xz) + xz * (xy * yz - dy * xz);
+    let xi = (13.5 * j3 / (vm * vm * vm)).clamp(-1.0, 1.0);
+    Invariants {
+        sigma_h,
+        sigma_vm,
+        shape: Ok(ShapeCore {
+            triaxiality: h / vm,
+            xi,
+            lode_angle_param: 1.0 - (2.0 / PI) * xi.acos(),
+        }),
     }
 }

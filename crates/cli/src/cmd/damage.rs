@@ -10,7 +10,7 @@ use ductrace_campaign::Study;
 use ductrace_locus::{
     CellDamage, DamageRule, IncrementFields, Locus, accumulate, start_cells, update_cells,
 };
-use ductrace_track::{History, HistoryRequest, Selector};
+use ductrace_track::{HistoryRequest, Selector};
 use ductrace_vtk::{Location, Series};
 use rayon::prelude::*;
 use serde_json::{Value, json};
@@ -18,6 +18,7 @@ use serde_json::{Value, json};
 use crate::args::DamageArgs;
 use crate::cmd::fit::path_to_stop;
 use crate::cmd::history::coords;
+use crate::cmd::table::Campaign;
 use crate::failure::Failure;
 use crate::fieldpass::FieldState;
 use crate::locusfile;
@@ -52,21 +53,18 @@ fn lerp(a: f64, b: f64, f: f64) -> f64 {
 
 /// The damage check of a study: one entry per specimen (errors per specimen).
 pub fn check_study(
-    study: &Study,
-    histories: &[(String, Result<History, String>)],
+    campaign: &Campaign,
     locus: &Locus,
     rule: DamageRule,
 ) -> Vec<(String, Result<SpecimenDamage, String>)> {
-    histories
+    let study = &campaign.study;
+    campaign
+        .results
         .par_iter()
-        .map(|(name, h)| {
+        .map(|(spec, h)| {
+            let name = &spec.name;
             let r = (|| -> Result<SpecimenDamage, String> {
-                let h = h.as_ref().map_err(|e| e.clone())?;
-                let spec = study
-                    .specimens
-                    .iter()
-                    .find(|s| &s.name == name)
-                    .ok_or_else(|| format!("no specimen {name}"))?;
+                let h = h.as_ref().map_err(|e| e.to_string())?;
                 // D at the measured fracture instant.
                 let p = path_to_stop(name, h);
                 let at_stop = accumulate(locus, rule, &p.eqps, &p.triaxiality, &p.lode_angle_param)
@@ -397,13 +395,8 @@ pub fn run(args: &DamageArgs, quiet: bool) -> Result<(), Failure> {
         .is_some_and(|e| e.eq_ignore_ascii_case("toml"));
     let (text, failed) = if is_study {
         let study = Study::load(&args.input)?;
-        let campaign = crate::cmd::table::run_campaign(study.clone(), quiet);
-        let histories: Vec<(String, Result<History, String>)> = campaign
-            .results
-            .into_iter()
-            .map(|(s, r)| (s.name, r.map_err(|e| e.to_string())))
-            .collect();
-        let results = check_study(&study, &histories, &locus, rule);
+        let campaign = crate::cmd::table::run_campaign(study, quiet);
+        let results = check_study(&campaign, &locus, rule);
         let failed = results.iter().filter(|(_, r)| r.is_err()).count();
         let text = match args.format {
             Format::Json => json_text(&study_json(&results, rule))?,

@@ -107,7 +107,7 @@ pub fn run(args: &DemoArgs, quiet: bool) -> Result<(), Failure> {
             "fit-mmc-average.json",
         ),
     ] {
-        let r = fit::fit_input(&study_path, kind, objective, &[], &[], true)?;
+        let r = fit::fit_campaign(&campaign, kind, objective, &[], &[], true)?;
         let doc = locusfile::to_json(&r, &study_path.display().to_string());
         let text = serde_json::to_string_pretty(&doc)
             .map_err(|e| Failure::data(format!("cannot encode JSON: {e}")))?;
@@ -115,44 +115,23 @@ pub fn run(args: &DemoArgs, quiet: bool) -> Result<(), Failure> {
         fits.push((file, fit::to_text(&r)));
     }
     let chosen = out.join("fit-hc-damage.json");
-    // Damage check with the damage-objective fit.
-    let study = Study::load(&study_path)?;
-    let locus = locusfile::read(&chosen)?;
-    let histories: Vec<(String, Result<ductrace_track::History, String>)> = campaign
-        .results
-        .iter()
-        .map(|(s, r)| {
-            (
-                s.name.clone(),
-                match r {
-                    Ok(h) => Ok(h.clone()),
-                    Err(e) => Err(e.to_string()),
-                },
-            )
-        })
-        .collect();
-    let checks = damage::check_study(
-        &study,
-        &histories,
-        &locus,
-        ductrace_locus::DamageRule::Linear,
-    );
-    let dj = serde_json::to_string_pretty(&damage::study_json(
-        &checks,
-        ductrace_locus::DamageRule::Linear,
-    ))
-    .map_err(|e| Failure::data(format!("cannot encode JSON: {e}")))?;
+    // Damage check with the damage-objective fit, read back from the file just written.
+    let (fit_json, locus) = report::read_fit(&chosen)?;
+    let rule = ductrace_locus::DamageRule::Linear;
+    let checks = damage::check_study(&campaign, &locus, rule);
+    let dj = serde_json::to_string_pretty(&damage::study_json(&checks, rule))
+        .map_err(|e| Failure::data(format!("cannot encode JSON: {e}")))?;
     write("damage.json", &(dj + "\n"))?;
-    let damage_text = damage::study_text(&checks, ductrace_locus::DamageRule::Linear);
+    let damage_text = damage::study_text(&checks, rule);
     write("damage.txt", &damage_text)?;
     // Charts and the report.
-    let plots = report::write_plots(&study_path, Some(&chosen), &out.join("plots"), true, true)?;
+    let plots = report::write_plots(&campaign, Some((&locus, &checks)), &out.join("plots"), true)?;
     let report_path = out.join("report.html");
-    report::write_report(
-        &study_path,
-        &chosen,
-        &report_path,
-        true,
+    let html = report::report_html(
+        &campaign,
+        &fit_json,
+        &locus,
+        &checks,
         format!(
             "ductrace demo {}  (equivalently: ductrace report {} --locus {} -o {})",
             out.display(),
@@ -161,6 +140,7 @@ pub fn run(args: &DemoArgs, quiet: bool) -> Result<(), Failure> {
             report_path.display()
         ),
     )?;
+    output::write_atomic(&report_path, html.as_bytes())?;
     written.push(report_path.clone());
     if !quiet {
         eprintln!("ductrace demo: {title}");

@@ -11,7 +11,7 @@ use ductrace_track::History;
 use serde_json::Value;
 
 use crate::args::{FitArgs, ObjectiveArg};
-use crate::cmd::table;
+use crate::cmd::table::{self, Campaign};
 use crate::failure::Failure;
 use crate::locusfile;
 use crate::output::{self, Format};
@@ -212,6 +212,82 @@ fn pin_unidentifiable(
     ))
 }
 
+/// The best attempt of a fit that did not converge is still worth showing; `run` exits 1
+/// after printing it.
+fn settle(result: Result<FitReport, LocusError>, input: &Path) -> Result<FitReport, Failure> {
+    match result {
+        Ok(r) => Ok(r),
+        Err(LocusError::NotConverged(best)) => Ok(*best),
+        Err(e) => Err(Failure::data(format!("{}: {e}", input.display()))),
+    }
+}
+
+/// Fits a campaign that has been run (either objective); every specimen must have succeeded.
+pub fn fit_campaign(
+    campaign: &Campaign,
+    kind: ModelKind,
+    objective: Objective,
+    fix: &[String],
+    free: &[String],
+    quiet: bool,
+) -> Result<FitReport, Failure> {
+    if let Some((name, e)) = campaign.failures().first() {
+        return Err(Failure::data(format!(
+            "specimen {name} failed, so the campaign cannot be fitted: {e}"
+        )));
+    }
+    let mut spec = spec(kind, campaign.study.material.hardening, fix, free)?;
+    let thetas: Vec<f64> = match objective {
+        Objective::Average => campaign
+            .points()
+            .iter()
+            .filter_map(|p| p.lode_angle_param_avg)
+            .collect(),
+        Objective::Damage => campaign
+            .results
+            .iter()
+            .filter_map(|(_, r)| r.as_ref().ok())
+            .flat_map(|h| h.rows.iter().filter_map(|r| r.lode_angle_param))
+            .collect(),
+    };
+    if let Some(note) = pin_unidentifiable(&mut spec, &thetas, free)?
+        && !quiet
+    {
+        eprintln!("ductrace: {note}");
+    }
+    let result = match objective {
+        Objective::Average => {
+            let points: Vec<CalibrationPoint> = campaign
+                .points()
+                .iter()
+                .map(|p| {
+                    Ok(CalibrationPoint {
+                        name: p.specimen.clone(),
+                        eqps_f: p.eqps_f,
+                        triaxiality_avg: p.triaxiality_avg.ok_or_else(|| {
+                            Failure::data(format!(
+                                "specimen {}: no plastic strain before the stop, no average",
+                                p.specimen
+                            ))
+                        })?,
+                        lode_angle_param_avg: p.lode_angle_param_avg.unwrap_or(0.0),
+                    })
+                })
+                .collect::<Result<_, Failure>>()?;
+            fit_average(&spec, &points)
+        }
+        Objective::Damage => {
+            let paths: Vec<SpecimenPath> = campaign
+                .results
+                .iter()
+                .filter_map(|(s, r)| r.as_ref().ok().map(|h| path_to_stop(&s.name, h)))
+                .collect();
+            fit_damage(&spec, &paths)
+        }
+    };
+    settle(result, &campaign.study.path)
+}
+
 /// Runs a fit on a study (either objective) or a table (average objective).
 pub fn fit_input(
     input: &Path,
@@ -224,87 +300,24 @@ pub fn fit_input(
     let is_study = input
         .extension()
         .is_some_and(|e| e.eq_ignore_ascii_case("toml"));
-    let result = if is_study {
-        let study = Study::load(input)?;
-        let hardening = study.material.hardening;
-        let campaign = table::run_campaign(study, quiet);
-        let failures = campaign.failures();
-        if let Some((name, e)) = failures.first() {
-            return Err(Failure::data(format!(
-                "specimen {name} failed, so the campaign cannot be fitted: {e}"
-            )));
-        }
-        let mut spec = spec(kind, hardening, fix, free)?;
-        let thetas: Vec<f64> = match objective {
-            Objective::Average => campaign
-                .points()
-                .iter()
-                .filter_map(|p| p.lode_angle_param_avg)
-                .collect(),
-            Objective::Damage => campaign
-                .results
-                .iter()
-                .filter_map(|(_, r)| r.as_ref().ok())
-                .flat_map(|h| h.rows.iter().filter_map(|r| r.lode_angle_param))
-                .collect(),
-        };
-        if let Some(note) = pin_unidentifiable(&mut spec, &thetas, free)?
-            && !quiet
-        {
-            eprintln!("ductrace: {note}");
-        }
-        match objective {
-            Objective::Average => {
-                let points: Vec<CalibrationPoint> = campaign
-                    .points()
-                    .iter()
-                    .map(|p| {
-                        Ok(CalibrationPoint {
-                            name: p.specimen.clone(),
-                            eqps_f: p.eqps_f,
-                            triaxiality_avg: p.triaxiality_avg.ok_or_else(|| {
-                                Failure::data(format!(
-                                    "specimen {}: no plastic strain before the stop, no average",
-                                    p.specimen
-                                ))
-                            })?,
-                            lode_angle_param_avg: p.lode_angle_param_avg.unwrap_or(0.0),
-                        })
-                    })
-                    .collect::<Result<_, Failure>>()?;
-                fit_average(&spec, &points)
-            }
-            Objective::Damage => {
-                let paths: Vec<SpecimenPath> = campaign
-                    .results
-                    .iter()
-                    .filter_map(|(s, r)| r.as_ref().ok().map(|h| path_to_stop(&s.name, h)))
-                    .collect();
-                fit_damage(&spec, &paths)
-            }
-        }
-    } else {
-        if objective == Objective::Damage {
-            return Err(Failure::usage(
-                "--objective damage needs the specimens' histories: give the study file, not a table",
-            ));
-        }
-        let (points, hardening) = read_table(input)?;
-        let mut spec = spec(kind, hardening, fix, free)?;
-        let thetas: Vec<f64> = points.iter().map(|p| p.lode_angle_param_avg).collect();
-        if let Some(note) = pin_unidentifiable(&mut spec, &thetas, free)?
-            && !quiet
-        {
-            eprintln!("ductrace: {note}");
-        }
-        fit_average(&spec, &points)
-    };
-    match result {
-        Ok(r) => Ok(r),
-        // The best attempt is still worth showing; `run` exits 1 after printing it.
-        Err(LocusError::NotConverged(best)) => Ok(*best),
-        Err(e) => Err(Failure::data(format!("{}: {e}", input.display()))),
+    if is_study {
+        let campaign = table::run_campaign(Study::load(input)?, quiet);
+        return fit_campaign(&campaign, kind, objective, fix, free, quiet);
     }
+    if objective == Objective::Damage {
+        return Err(Failure::usage(
+            "--objective damage needs the specimens' histories: give the study file, not a table",
+        ));
+    }
+    let (points, hardening) = read_table(input)?;
+    let mut spec = spec(kind, hardening, fix, free)?;
+    let thetas: Vec<f64> = points.iter().map(|p| p.lode_angle_param_avg).collect();
+    if let Some(note) = pin_unidentifiable(&mut spec, &thetas, free)?
+        && !quiet
+    {
+        eprintln!("ductrace: {note}");
+    }
+    settle(fit_average(&spec, &points), input)
 }
 
 /// The fit as text.

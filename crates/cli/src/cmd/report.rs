@@ -1,19 +1,26 @@
 //! `ductrace report STUDY --locus FIT.json -o report.html` and `ductrace plot`: the
 //! campaign's pictures, and one self-contained HTML file with the table, the fit, the
 //! damage check and the charts.
+//!
+//! Both work on a campaign that has been run once ([`table::run_campaign`]) and, with a
+//! locus, on its damage check ([`check_study`]), so the demo can share them.
 
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 use ductrace_campaign::Study;
-use ductrace_locus::DamageRule;
-use ductrace_track::History;
+use ductrace_locus::{DamageRule, Locus};
+use serde_json::Value;
 
 use crate::args::{PlotArgs, ReportArgs};
-use crate::cmd::damage::check_study;
-use crate::cmd::{table, visual};
+use crate::cmd::damage::{SpecimenDamage, check_study};
+use crate::cmd::table::{self, Campaign};
+use crate::cmd::visual;
 use crate::failure::Failure;
 use crate::locusfile;
 use crate::output;
+
+/// The damage check of every specimen: name and outcome.
+pub type Checks = Vec<(String, Result<SpecimenDamage, String>)>;
 
 /// True when the study says it is invented (its title or material name does).
 pub fn is_invented(study: &Study) -> bool {
@@ -26,48 +33,33 @@ pub fn is_invented(study: &Study) -> bool {
     text.contains("invented")
 }
 
-fn histories(c: &table::Campaign) -> Vec<(String, Result<History, String>)> {
-    c.results
-        .iter()
-        .map(|(s, r)| {
-            (
-                s.name.clone(),
-                match r {
-                    Ok(h) => Ok(h.clone()),
-                    Err(e) => Err(e.to_string()),
-                },
-            )
-        })
-        .collect()
+/// Reads a fit file as JSON (for the report's fit section) and as a locus.
+pub fn read_fit(path: &Path) -> Result<(Value, Locus), Failure> {
+    let locus = locusfile::read(path)?;
+    let json: Value = serde_json::from_str(
+        &std::fs::read_to_string(path).map_err(|e| Failure::io(path, "read", e))?,
+    )
+    .map_err(|e| Failure::data(format!("{}: not JSON: {e}", path.display())))?;
+    Ok((json, locus))
 }
 
-/// Writes the HTML report of a study with a fit file.
-pub fn write_report(
-    study_path: &Path,
-    fit_path: &Path,
-    out: &Path,
-    quiet: bool,
+/// The HTML report of a campaign with its fit and damage check.
+pub fn report_html(
+    campaign: &Campaign,
+    fit_json: &Value,
+    locus: &Locus,
+    checks: &Checks,
     command: String,
-) -> Result<(), Failure> {
-    let study = Study::load(study_path)?;
-    let locus = locusfile::read(fit_path)?;
-    let fit_json: serde_json::Value = serde_json::from_str(
-        &std::fs::read_to_string(fit_path).map_err(|e| Failure::io(fit_path, "read", e))?,
-    )
-    .map_err(|e| Failure::data(format!("{}: not JSON: {e}", fit_path.display())))?;
-    let invented = is_invented(&study);
-    let campaign = table::run_campaign(study.clone(), quiet);
-    let checks = check_study(&study, &histories(&campaign), &locus, DamageRule::Linear);
+) -> Result<String, Failure> {
     let data = visual::report_data(
-        &campaign,
-        Some(&fit_json),
-        Some(&locus),
-        Some(&checks),
-        invented,
+        campaign,
+        Some(fit_json),
+        Some(locus),
+        Some(checks),
+        is_invented(&campaign.study),
         command,
     )?;
-    let html = ductrace_plot::report::render(&data);
-    output::emit(html.as_bytes(), Some(out), &[study_path, fit_path])
+    Ok(ductrace_plot::report::render(&data))
 }
 
 /// Runs `ductrace report`.
@@ -78,35 +70,38 @@ pub fn run(args: &ReportArgs, quiet: bool) -> Result<(), Failure> {
         args.locus.display(),
         args.output.display()
     );
-    write_report(&args.study, &args.locus, &args.output, quiet, command)?;
+    let (fit_json, locus) = read_fit(&args.locus)?;
+    let campaign = table::run_campaign(Study::load(&args.study)?, quiet);
+    let checks = check_study(&campaign, &locus, DamageRule::Linear);
+    let html = report_html(&campaign, &fit_json, &locus, &checks, command)?;
+    output::emit(
+        html.as_bytes(),
+        Some(&args.output),
+        &[&args.study, &args.locus],
+    )?;
     if !quiet {
         eprintln!("ductrace: wrote {}", args.output.display());
     }
     Ok(())
 }
 
-/// Writes the charts of a study (and of a fit, when given) into a folder; returns the
-/// files written.
+/// Writes the charts of a campaign (and of a locus with its damage check, when given) into
+/// a folder; returns the files written.
 pub fn write_plots(
-    study_path: &Path,
-    fit_path: Option<&Path>,
+    campaign: &Campaign,
+    fit: Option<(&Locus, &Checks)>,
     dir: &Path,
     png: bool,
-    quiet: bool,
-) -> Result<Vec<std::path::PathBuf>, Failure> {
-    let study = Study::load(study_path)?;
-    let campaign = table::run_campaign(study.clone(), quiet);
+) -> Result<Vec<PathBuf>, Failure> {
     std::fs::create_dir_all(dir).map_err(|e| Failure::io(dir, "create", e))?;
     let mut charts: Vec<(String, ductrace_plot::Chart)> = Vec::new();
-    charts.push(("state-plane".into(), visual::plane_chart(&campaign)?));
-    for (name, c) in visual::path_charts(&campaign)? {
+    charts.push(("state-plane".into(), visual::plane_chart(campaign)?));
+    for (name, c) in visual::path_charts(campaign)? {
         charts.push((format!("path-{name}"), c));
     }
-    if let Some(fp) = fit_path {
-        let locus = locusfile::read(fp)?;
-        charts.push(("locus".into(), visual::locus_plot(&campaign, &locus)?));
-        let checks = check_study(&study, &histories(&campaign), &locus, DamageRule::Linear);
-        charts.push(("damage".into(), visual::damage_plot(&checks)?));
+    if let Some((locus, checks)) = fit {
+        charts.push(("locus".into(), visual::locus_plot(campaign, locus)?));
+        charts.push(("damage".into(), visual::damage_plot(checks)?));
     }
     let mut written = Vec::new();
     for (name, chart) in &charts {
@@ -127,12 +122,20 @@ pub fn write_plots(
 
 /// Runs `ductrace plot`.
 pub fn run_plot(args: &PlotArgs, quiet: bool) -> Result<(), Failure> {
+    let campaign = table::run_campaign(Study::load(&args.study)?, quiet);
+    let fit = match &args.locus {
+        Some(p) => {
+            let locus = locusfile::read(p)?;
+            let checks = check_study(&campaign, &locus, DamageRule::Linear);
+            Some((locus, checks))
+        }
+        None => None,
+    };
     let written = write_plots(
-        &args.study,
-        args.locus.as_deref(),
+        &campaign,
+        fit.as_ref().map(|(l, c)| (l, c)),
         &args.output,
         args.png,
-        quiet,
     )?;
     if !quiet {
         for p in &written {
