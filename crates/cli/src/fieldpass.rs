@@ -10,12 +10,24 @@
 use ductrace_tensor::{ComponentOrder, batch};
 use ductrace_track::fields::{EqpsSource, Fields};
 use ductrace_vtk::{Increment, Series, find_nonfinite};
+use rayon::iter::Either;
 use rayon::prelude::*;
 
 use crate::failure::Failure;
 
+/// Whether a pass computes the Lode angle parameter θ̄ (one `acos` per entity).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Lode {
+    /// Compute θ̄ (export, loci that depend on it).
+    Compute,
+    /// Leave it out: the pass's locus does not depend on θ̄
+    /// ([`ductrace_locus::FractureLocus::uses_lode_angle`]).
+    Skip,
+}
+
 /// Per-entity measures of one increment. `triaxiality` and `lode_angle_param` hold 0
-/// where `defined` is false (never read there).
+/// where `defined` is false (never read there); `lode_angle_param` is empty when the pass
+/// did not ask for θ̄ (a locus that does not depend on it).
 #[derive(Debug, Default)]
 pub struct FieldState {
     /// Decoded stress (reused).
@@ -28,7 +40,7 @@ pub struct FieldState {
     pub sigma_vm: Vec<f64>,
     /// η where defined.
     pub triaxiality: Vec<f64>,
-    /// θ̄ where defined.
+    /// θ̄ where defined; empty when not asked for.
     pub lode_angle_param: Vec<f64>,
     /// Shape measures defined (σ_vm > 0 and finite input).
     pub defined: Vec<bool>,
@@ -48,9 +60,10 @@ impl FieldState {
         inc: &Increment<'_>,
         fields: &Fields,
         allow_nonfinite: bool,
+        lode: Lode,
     ) -> Result<(), Failure> {
         self.fetch(series, inc, fields)?;
-        self.evaluate(series, inc.index(), fields, allow_nonfinite)
+        self.evaluate(series, inc.index(), fields, allow_nonfinite, lode)
     }
 
     /// Decodes the stress and ε̄p arrays of one increment into the reused buffers, nothing
@@ -81,15 +94,16 @@ impl FieldState {
     }
 
     /// Evaluates the fetched arrays of increment `index` in one parallel pass: σ_h, σ_vm,
-    /// η, θ̄ and the mask per entity ([`batch::measures_of`]), counting non-finite input on
-    /// the way; the first non-finite value is located (for the message) only when there is
-    /// one and `allow_nonfinite` is off.
+    /// η, θ̄ (with [`Lode::Compute`]) and the mask per entity ([`batch::measures_of`]),
+    /// counting non-finite input on the way; the first non-finite value is located (for the
+    /// message) only when there is one and `allow_nonfinite` is off.
     pub fn evaluate(
         &mut self,
         series: &Series,
         index: usize,
         fields: &Fields,
         allow_nonfinite: bool,
+        lode: Lode,
     ) -> Result<(), Failure> {
         let loc = fields.location;
         let width = fields.stress_components;
@@ -104,8 +118,18 @@ impl FieldState {
         self.sigma_h.resize(n, 0.0);
         self.sigma_vm.resize(n, 0.0);
         self.triaxiality.resize(n, 0.0);
-        self.lode_angle_param.resize(n, 0.0);
         self.defined.resize(n, false);
+        let chunks = n.div_ceil(CHUNK);
+        let theta_chunks = match lode {
+            Lode::Compute => {
+                self.lode_angle_param.resize(n, 0.0);
+                Either::Left(self.lode_angle_param.par_chunks_mut(CHUNK).map(Some))
+            }
+            Lode::Skip => {
+                self.lode_angle_param.clear();
+                Either::Right((0..chunks).into_par_iter().map(|_| None))
+            }
+        };
         let order: ComponentOrder = fields.stress_order;
         let stress = &self.stress;
         let (bad_stress, bad_eqps) = self
@@ -113,27 +137,31 @@ impl FieldState {
             .par_chunks_mut(CHUNK)
             .zip(self.sigma_vm.par_chunks_mut(CHUNK))
             .zip(self.triaxiality.par_chunks_mut(CHUNK))
-            .zip(self.lode_angle_param.par_chunks_mut(CHUNK))
+            .zip(theta_chunks)
             .zip(self.defined.par_chunks_mut(CHUNK))
             .zip(stress.par_chunks(CHUNK * width))
             .zip(self.eqps.par_chunks(CHUNK))
-            .map(|((((((h, vm), eta), theta), def), s), e)| {
+            .map(|((((((h, vm), eta), mut theta), def), s), e)| {
                 let mut bad = 0usize;
                 for (i, t) in s.chunks_exact(width).enumerate() {
-                    match batch::measures_of(t, &order) {
+                    let (theta_i, ok) = match batch::measures_of(t, &order) {
                         Ok(m) => {
                             h[i] = m.sigma_h;
                             vm[i] = m.sigma_vm;
                             match m.shape {
                                 Some(l) => {
                                     eta[i] = l.triaxiality;
-                                    theta[i] = l.lode_angle_param;
-                                    def[i] = true;
+                                    // θ̄ (one acos) only when asked for
+                                    let th = if theta.is_some() {
+                                        l.lode_angle_param()
+                                    } else {
+                                        0.0
+                                    };
+                                    (th, true)
                                 }
                                 None => {
                                     eta[i] = 0.0;
-                                    theta[i] = 0.0;
-                                    def[i] = false;
+                                    (0.0, false)
                                 }
                             }
                         }
@@ -142,9 +170,12 @@ impl FieldState {
                             h[i] = f64::NAN;
                             vm[i] = f64::NAN;
                             eta[i] = 0.0;
-                            theta[i] = 0.0;
-                            def[i] = false;
+                            (0.0, false)
                         }
+                    };
+                    def[i] = ok;
+                    if let Some(th) = theta.as_deref_mut() {
+                        th[i] = theta_i;
                     }
                 }
                 (bad, e.iter().filter(|v| !v.is_finite()).count())

@@ -161,7 +161,7 @@ pub fn accumulate<L: FractureLocus + ?Sized>(
                 increment,
                 at: at(),
                 eta: e,
-                theta_bar: t,
+                theta_bar: Some(t),
             }),
         }
     };
@@ -309,13 +309,15 @@ impl CellDamage {
 }
 
 /// One row of full-field data: per-cell ε̄p, η and θ̄ with a mask saying where the
-/// stress state is defined (values under a `false` mask are ignored).
+/// stress state is defined (values under a `false` mask are ignored). θ̄ may be left out
+/// ([`IncrementFields::without_lode_angle`]) for a locus that does not depend on it
+/// ([`FractureLocus::uses_lode_angle`]); the kernels refuse such a row for any other locus.
 #[derive(Debug, Clone, Copy)]
 pub struct IncrementFields<'a> {
     row: usize,
     eqps: &'a [f64],
     eta: &'a [f64],
-    theta_bar: &'a [f64],
+    theta_bar: Option<&'a [f64]>,
     defined: &'a [bool],
 }
 
@@ -344,7 +346,35 @@ impl<'a> IncrementFields<'a> {
             row,
             eqps,
             eta,
-            theta_bar,
+            theta_bar: Some(theta_bar),
+            defined,
+        })
+    }
+
+    /// Borrows one row's arrays without θ̄, for a locus that does not depend on it (Johnson–Cook's
+    /// stress-state part): a full-field pass then skips one `acos` per cell. All arrays must
+    /// have the same length.
+    pub fn without_lode_angle(
+        row: usize,
+        eqps: &'a [f64],
+        eta: &'a [f64],
+        defined: &'a [bool],
+    ) -> Result<Self, LocusError> {
+        let n = eqps.len();
+        if eta.len() != n || defined.len() != n {
+            return Err(LocusError::LengthMismatch {
+                what: format!(
+                    "row {row}: eqps has {n} cells, triaxiality {}, mask {}",
+                    eta.len(),
+                    defined.len()
+                ),
+            });
+        }
+        Ok(IncrementFields {
+            row,
+            eqps,
+            eta,
+            theta_bar: None,
             defined,
         })
     }
@@ -373,7 +403,7 @@ impl<'a> IncrementFields<'a> {
             row: self.row,
             eqps: &self.eqps[s..e],
             eta: &self.eta[s..e],
-            theta_bar: &self.theta_bar[s..e],
+            theta_bar: self.theta_bar.map(|t| &t[s..e]),
             defined: &self.defined[s..e],
         }
     }
@@ -392,7 +422,7 @@ pub fn start_cells<L: FractureLocus + ?Sized>(
     first_cell: usize,
     cells: &mut [CellDamage],
 ) -> Result<(), LocusError> {
-    check_len(fields, cells)?;
+    check_len(locus, fields, cells)?;
     for (i, cell) in cells.iter_mut().enumerate() {
         let e = fields.eqps[i];
         if !e.is_finite() {
@@ -411,7 +441,17 @@ pub fn start_cells<L: FractureLocus + ?Sized>(
     Ok(())
 }
 
-fn check_len(fields: &IncrementFields<'_>, cells: &[CellDamage]) -> Result<(), LocusError> {
+fn check_len<L: FractureLocus + ?Sized>(
+    locus: &L,
+    fields: &IncrementFields<'_>,
+    cells: &[CellDamage],
+) -> Result<(), LocusError> {
+    if fields.theta_bar.is_none() && locus.uses_lode_angle() {
+        return Err(LocusError::MissingLodeAngle {
+            row: fields.row,
+            model: locus.id(),
+        });
+    }
     if fields.len() != cells.len() {
         return Err(LocusError::LengthMismatch {
             what: format!(
@@ -425,11 +465,14 @@ fn check_len(fields: &IncrementFields<'_>, cells: &[CellDamage]) -> Result<(), L
     Ok(())
 }
 
-/// 1/ε_f at cell `i`, 0.0 when undefined.
+/// 1/ε_f at cell `i`, 0.0 when undefined. Without θ̄ (a locus that ignores it, checked by
+/// `check_len`), NaN stands in for it: were a locus to read it anyway, its ε_f would be
+/// undefined and the kernel would fail loudly rather than use a made-up θ̄.
 #[inline(always)]
 fn inverse_at<L: FractureLocus + ?Sized>(locus: &L, fields: &IncrementFields<'_>, i: usize) -> f64 {
     if fields.defined[i] {
-        match locus.fracture_strain(fields.eta[i], fields.theta_bar[i]) {
+        let theta_bar = fields.theta_bar.map_or(f64::NAN, |t| t[i]);
+        match locus.fracture_strain(fields.eta[i], theta_bar) {
             Some(f) => 1.0 / f,
             None => 0.0,
         }
@@ -473,7 +516,7 @@ pub fn update_cells<L: FractureLocus + ?Sized>(
     cells: &mut [CellDamage],
 ) -> Result<(), LocusError> {
     rule.validate()?;
-    check_len(fields, cells)?;
+    check_len(locus, fields, cells)?;
     let row = fields.row;
     let base = row.saturating_sub(1) as f64;
     for (i, cell) in cells.iter_mut().enumerate() {
@@ -542,7 +585,7 @@ fn cell_error_end(
             increment: de,
             at,
             eta: fields.eta[i],
-            theta_bar: fields.theta_bar[i],
+            theta_bar: fields.theta_bar.map(|t| t[i]),
         }
     } else {
         LocusError::UndefinedStressState { increment: de, at }
@@ -592,6 +635,58 @@ mod tests {
                 "cell {c}"
             );
         }
+    }
+
+    #[test]
+    fn rows_without_lode_angle_serve_only_loci_that_ignore_it() {
+        // Johnson–Cook's stress-state part does not depend on θ̄ (Johnson & Cook 1985): the
+        // same cells with and without θ̄ give the same bits; a Hosford–Coulomb locus (which
+        // depends on θ̄, Mohr & Marcadet 2015) refuses a row without it.
+        let jc = JohnsonCook::new(0.05, 3.44, -2.12).unwrap();
+        let eqps = [[0.0, 0.0], [0.2, 0.1], [0.5, 0.9]];
+        let eta = [[0.3, 0.5], [0.4, 0.6], [0.5, 1.1]];
+        let th = [0.7, -0.3];
+        let ok = [true, true];
+        let mut with = [CellDamage::new(); 2];
+        let mut without = [CellDamage::new(); 2];
+        for r in 0..3 {
+            let a = IncrementFields::new(r, &eqps[r], &eta[r], &th, &ok).unwrap();
+            let b = IncrementFields::without_lode_angle(r, &eqps[r], &eta[r], &ok).unwrap();
+            if r == 0 {
+                start_cells(&jc, &a, 0, &mut with).unwrap();
+                start_cells(&jc, &b, 0, &mut without).unwrap();
+            } else {
+                update_cells(&jc, DamageRule::Linear, &a, 0, &mut with).unwrap();
+                update_cells(&jc, DamageRule::Linear, &b, 0, &mut without).unwrap();
+            }
+        }
+        for c in 0..2 {
+            assert_eq!(
+                with[c].integral().to_bits(),
+                without[c].integral().to_bits()
+            );
+            assert_eq!(with[c].crossing(), without[c].crossing());
+        }
+        let hc = crate::HosfordCoulomb::new(1.3, 0.85, 0.05, 0.1).unwrap();
+        let b = IncrementFields::without_lode_angle(1, &eqps[1], &eta[1], &ok).unwrap();
+        let e = update_cells(&hc, DamageRule::Linear, &b, 0, &mut with).unwrap_err();
+        assert!(
+            matches!(
+                e,
+                LocusError::MissingLodeAngle {
+                    row: 1,
+                    model: "hc"
+                }
+            ),
+            "{e}"
+        );
+        assert!(e.to_string().contains("Lode angle parameter"), "{e}");
+        let e = start_cells(&hc, &b, 0, &mut with).unwrap_err();
+        assert!(matches!(e, LocusError::MissingLodeAngle { .. }), "{e}");
+        assert!(
+            IncrementFields::without_lode_angle(0, &[0.0; 2], &[0.0; 3], &ok).is_err(),
+            "length mismatch"
+        );
     }
 
     #[test]

@@ -138,6 +138,17 @@ pub enum LocusError {
         report: Box<FitReport>,
     },
 
+    /// A full-field row without the Lode angle parameter given to a locus that depends on it.
+    #[error(
+        "row {row}: the fracture locus {model} depends on the Lode angle parameter, which this pass did not compute"
+    )]
+    MissingLodeAngle {
+        /// Row index.
+        row: usize,
+        /// Model id.
+        model: &'static str,
+    },
+
     /// Arrays of one path or one increment whose lengths differ.
     #[error("array lengths differ: {what}")]
     LengthMismatch {
@@ -178,7 +189,8 @@ pub enum LocusError {
 
     /// A plastic increment where the fracture strain is undefined or not positive.
     #[error(
-        "{at}: plastic strain increment {increment} > 0 where the fracture locus is undefined (triaxiality {eta}, lode angle parameter {theta_bar}: beyond the locus cut-off or out of range)"
+        "{at}: plastic strain increment {increment} > 0 where the fracture locus is undefined (triaxiality {eta}{}: beyond the locus cut-off or out of range)",
+        lode_note(.theta_bar)
     )]
     UndefinedFractureStrain {
         /// Δε̄p of the increment.
@@ -187,8 +199,9 @@ pub enum LocusError {
         at: String,
         /// Triaxiality there.
         eta: f64,
-        /// Lode angle parameter there.
-        theta_bar: f64,
+        /// Lode angle parameter there; `None` when the pass did not compute it because the
+        /// locus does not depend on it.
+        theta_bar: Option<f64>,
     },
 
     /// A plastic increment whose starting row (the previous state of a cell) has no
@@ -206,4 +219,9 @@ pub enum LocusError {
     /// A damage exponent that is not finite and positive.
     #[error("damage exponent {0} is out of range (must be finite and > 0)")]
     InvalidExponent(f64),
+}
+
+/// ", lode angle parameter θ̄" for the message of [`LocusError::UndefinedFractureStrain`].
+fn lode_note(theta_bar: &Option<f64>) -> String {
+    theta_bar.map_or_else(String::new, |t| format!(", lode angle parameter {t}"))
 }

@@ -29,6 +29,12 @@ pub trait FractureLocus {
 
     /// The parameters by name, in the model's canonical order.
     fn parameters(&self) -> Vec<(&'static str, f64)>;
+
+    /// Whether ε_f depends on θ̄. `false` lets a full-field pass skip computing θ̄; a model
+    /// that answers `false` must return the same ε_f whatever θ̄ it is given, NaN included.
+    fn uses_lode_angle(&self) -> bool {
+        true
+    }
 }
 
 /// Returns `Some(x)` when `x` is finite and positive.
@@ -221,6 +227,10 @@ impl FractureLocus for JohnsonCook {
             return None;
         }
         positive(self.d1 + self.d2 * (self.d3 * eta).exp())
+    }
+
+    fn uses_lode_angle(&self) -> bool {
+        false
     }
 
     fn parameters(&self) -> Vec<(&'static str, f64)> {
@@ -703,6 +713,14 @@ impl FractureLocus for Locus {
             Locus::HosfordCoulomb(m) => m.parameters(),
         }
     }
+
+    fn uses_lode_angle(&self) -> bool {
+        match self {
+            Locus::JohnsonCook(m) => m.uses_lode_angle(),
+            Locus::ModifiedMohrCoulomb(m) => m.uses_lode_angle(),
+            Locus::HosfordCoulomb(m) => m.uses_lode_angle(),
+        }
+    }
 }
 
 impl<L: FractureLocus + ?Sized> FractureLocus for &L {
@@ -714,6 +732,9 @@ impl<L: FractureLocus + ?Sized> FractureLocus for &L {
     }
     fn parameters(&self) -> Vec<(&'static str, f64)> {
         (**self).parameters()
+    }
+    fn uses_lode_angle(&self) -> bool {
+        (**self).uses_lode_angle()
     }
 }
 

@@ -42,7 +42,19 @@ fn bench(c: &mut Criterion) {
             for (o, t) in out.chunks_exact_mut(2).zip(s.chunks_exact(6)) {
                 let m = batch::measures_of(t, &order).unwrap();
                 o[0] = m.sigma_vm;
-                o[1] = m.shape.map_or(0.0, |l| l.triaxiality + l.lode_angle_param);
+                o[1] = m
+                    .shape
+                    .map_or(0.0, |l| l.triaxiality + l.lode_angle_param());
+            }
+            black_box(&out);
+        })
+    });
+    g.bench_function("measures_of_serial_without_lode_angle", |b| {
+        b.iter(|| {
+            for (o, t) in out.chunks_exact_mut(2).zip(s.chunks_exact(6)) {
+                let m = batch::measures_of(t, &order).unwrap();
+                o[0] = m.sigma_vm;
+                o[1] = m.shape.map_or(0.0, |l| l.triaxiality);
             }
             black_box(&out);
         })
@@ -55,7 +67,9 @@ fn bench(c: &mut Criterion) {
                     for (o, t) in o.chunks_exact_mut(2).zip(s.chunks_exact(6)) {
                         let m = batch::measures_of(t, &order).unwrap();
                         o[0] = m.sigma_vm;
-                        o[1] = m.shape.map_or(0.0, |l| l.triaxiality + l.lode_angle_param);
+                        o[1] = m
+                            .shape
+                            .map_or(0.0, |l| l.triaxiality + l.lode_angle_param());
                     }
                 });
             black_box(&out);

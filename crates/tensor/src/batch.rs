@@ -25,13 +25,15 @@ pub fn state_of(values: &[f64], order: &ComponentOrder) -> Result<StressState, T
     Ok(Stress::from_slice(values, order)?.state())
 }
 
-/// The measures a full-field pass needs from one tuple: σ_h, σ_vm and, where defined, η and θ̄.
+/// The measures a full-field pass needs from one tuple: σ_h, σ_vm and, where defined, η and ξ
+/// (θ̄ on request, [`ShapeMeasures::lode_angle_param`]).
 ///
 /// The same quantities as [`StressState`] (FIELD-NOTES §1: σ_h = tr σ/3, σ_vm = √(3 J2),
 /// η = σ_h/σ_vm (Bao & Wierzbicki 2004), θ̄ = 1 − (2/π) arccos ξ with ξ = (27/2) J3/σ_vm³
 /// clamped to [−1, 1] (Bai & Wierzbicki 2008)), computed by the same function as
 /// [`StressState::from_vtk6`], so every value is bit-identical to it; the Lode
-/// parameter μ (one `tan` per tuple) is left out.
+/// parameter μ (one `tan` per tuple) is left out, and θ̄ (one `acos`) is computed only by
+/// callers that ask for it.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Measures {
     /// Hydrostatic stress σ_h.
@@ -42,13 +44,24 @@ pub struct Measures {
     pub shape: Option<ShapeMeasures>,
 }
 
-/// Triaxiality and Lode angle parameter of a tuple whose σ_vm does not vanish.
+/// Triaxiality and the normalised third invariant of a tuple whose σ_vm does not vanish;
+/// the Lode angle parameter follows on request, so a pass whose locus ignores it (Johnson–Cook)
+/// does not pay its `acos`.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct ShapeMeasures {
     /// Triaxiality η = σ_h/σ_vm.
     pub triaxiality: f64,
-    /// Lode angle parameter θ̄ ∈ [−1, 1].
-    pub lode_angle_param: f64,
+    /// ξ = (27/2) J3/σ_vm³, clamped to [−1, 1].
+    pub xi: f64,
+}
+
+impl ShapeMeasures {
+    /// θ̄ = 1 − (2/π) arccos ξ ∈ [−1, 1] (Bai & Wierzbicki 2008), bit-identical to
+    /// [`StressState::lode_angle_param`].
+    #[inline]
+    pub fn lode_angle_param(&self) -> f64 {
+        crate::state::lode_angle_param_of(self.xi)
+    }
 }
 
 /// [`Measures`] of six finite components in VTK's order `XX, YY, ZZ, XY, YZ, XZ`; the
@@ -61,7 +74,7 @@ pub fn measures_vtk6(c: &[f64; 6]) -> Measures {
         sigma_vm: core.sigma_vm,
         shape: core.shape.ok().map(|s| ShapeMeasures {
             triaxiality: s.triaxiality,
-            lode_angle_param: s.lode_angle_param,
+            xi: s.xi,
         }),
     }
 }
@@ -81,7 +94,7 @@ pub fn measures_of(values: &[f64], order: &ComponentOrder) -> Result<Measures, T
         sigma_vm: s.sigma_vm,
         shape: s.lode().map(|l| ShapeMeasures {
             triaxiality: l.triaxiality,
-            lode_angle_param: l.lode_angle_param,
+            xi: l.xi,
         }),
     })
 }
@@ -218,7 +231,8 @@ mod tests {
             match (m.shape, s.lode()) {
                 (Some(a), Some(b)) => {
                     assert_eq!(a.triaxiality.to_bits(), b.triaxiality.to_bits(), "{c:?}");
-                    assert_eq!(a.lode_angle_param.to_bits(), b.lode_angle_param.to_bits());
+                    assert_eq!(a.xi.to_bits(), b.xi.to_bits(), "{c:?}");
+                    assert_eq!(a.lode_angle_param().to_bits(), b.lode_angle_param.to_bits());
                 }
                 (None, None) => {}
                 other => panic!("{c:?}: {other:?}"),

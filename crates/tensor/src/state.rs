@@ -91,11 +91,12 @@ impl StressState {
         let core = invariants(c);
         let shape = match core.shape {
             Ok(s) => {
-                let lode_param = -(3.0_f64.sqrt()) * (PI * s.lode_angle_param / 6.0).tan();
+                let lode_angle_param = s.lode_angle_param();
+                let lode_param = -(3.0_f64.sqrt()) * (PI * lode_angle_param / 6.0).tan();
                 Shape::Defined(Lode {
                     triaxiality: s.triaxiality,
                     xi: s.xi,
-                    lode_angle_param: s.lode_angle_param,
+                    lode_angle_param,
                     lode_param: lode_param.clamp(-1.0, 1.0),
                 })
             }
@@ -172,12 +173,26 @@ pub(crate) struct Invariants {
     pub(crate) shape: Result<ShapeCore, Undefined>,
 }
 
-/// η, ξ and θ̄ of a tensor with σ_vm > 0.
+/// η and ξ of a tensor with σ_vm > 0; θ̄ follows from ξ on request (one `acos`).
 #[derive(Debug, Clone, Copy)]
 pub(crate) struct ShapeCore {
     pub(crate) triaxiality: f64,
     pub(crate) xi: f64,
-    pub(crate) lode_angle_param: f64,
+}
+
+impl ShapeCore {
+    /// θ̄ = 1 − (2/π) arccos ξ (Bai & Wierzbicki 2008).
+    #[inline]
+    pub(crate) fn lode_angle_param(&self) -> f64 {
+        lode_angle_param_of(self.xi)
+    }
+}
+
+/// θ̄ = 1 − (2/π) arccos ξ for ξ ∈ [−1, 1] (Bai & Wierzbicki 2008): the one place the crate
+/// turns ξ into θ̄, so every path gives the same bits.
+#[inline]
+pub(crate) fn lode_angle_param_of(xi: f64) -> f64 {
+    1.0 - (2.0 / PI) * xi.acos()
 }
 
 /// The invariants of six components in VTK's order (see the module doc for the formulas and
@@ -224,7 +239,6 @@ pub(crate) fn invariants(c: &[f64; 6]) -> Invariants {
         shape: Ok(ShapeCore {
             triaxiality: h / vm,
             xi,
-            lode_angle_param: 1.0 - (2.0 / PI) * xi.acos(),
         }),
     }
 }

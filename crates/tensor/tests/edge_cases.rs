@@ -333,7 +333,7 @@ proptest! {
         match (m.shape, st.lode()) {
             (Some(a), Some(l)) => {
                 prop_assert_eq!(a.triaxiality, l.triaxiality);
-                prop_assert_eq!(a.lode_angle_param, l.lode_angle_param);
+                prop_assert_eq!(a.lode_angle_param(), l.lode_angle_param);
             }
             (None, None) => {}
             (a, l) => prop_assert!(false, "kernel {a:?} vs state {l:?}"),

@@ -4,6 +4,7 @@
 //! coordinates in the files, those points minus the first increment's displacement.
 
 use ductrace_vtk::{Location, Series};
+use rayon::prelude::*;
 
 use crate::fields::Fields;
 use crate::{Result, TrackError};
@@ -46,7 +47,7 @@ pub fn distance(a: &[f64; 3], b: &[f64; 3]) -> f64 {
 impl Reference {
     /// Builds the reference configuration (see the module doc).
     pub fn build(series: &Series, fields: &Fields, deformed_points: bool) -> Result<Reference> {
-        let mesh = series.mesh();
+        let mesh = series.mesh()?;
         let mut points = mesh.points().to_vec();
         if deformed_points {
             let name = fields
@@ -67,7 +68,9 @@ impl Reference {
         }
         let entities = match fields.location {
             Location::Point => points.clone(),
+            // Centroids in parallel (the mean of each cell's points).
             Location::Cell => (0..mesh.n_cells())
+                .into_par_iter()
                 .map(|c| {
                     let ids = mesh.cell_points(c);
                     let mut s = [0.0; 3];

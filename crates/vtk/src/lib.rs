@@ -11,9 +11,11 @@
 //!   folders (their single `.pvd`, or numbered files such as `run_0001.vtu`, `run_0002.vtu`).
 //!
 //! # How it reads
-//! [`Series::open`] reads the catalogue only: the increments with their times and files, the
-//! reference mesh (the **points and cells of the first increment**) and the fields of the first
-//! increment (name, location, components, type, encoding). Nothing else is decoded. The XML header
+//! [`Series::open`] reads the catalogue only: the increments with their times and files, the point
+//! and cell counts and the fields of the first increment (name, location, components, type,
+//! encoding). Nothing is decoded: the reference mesh (the **points and cells of the first
+//! increment**) on the first call of [`Series::mesh`], which validates its cells and keeps it,
+//! and arrays on request. The XML header
 //! is parsed with quick-xml up to the `<AppendedData>` tag; the file is memory-mapped and arrays
 //! are decoded on request, straight from the mapping, into caller-owned buffers
 //! ([`Increment::read`], [`Increment::read_tuples`]). Memory stays bounded by one increment's
@@ -53,7 +55,7 @@
 //! for info in series.increments() {
 //!     let inc = series.increment(info.index)?;
 //!     let field = inc.read("stress", Location::Cell, &mut stress)?;
-//!     assert_eq!(stress.len(), series.mesh().n_cells() * field.components);
+//!     assert_eq!(stress.len(), series.n_cells() * field.components);
 //! }
 //! # Ok(()) }
 //! ```

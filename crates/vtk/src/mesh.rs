@@ -2,6 +2,7 @@
 
 use crate::cells::{NodeCount, cell_kind};
 use crate::error::Error;
+use rayon::prelude::*;
 use std::path::Path;
 
 /// Points and cells of the reference configuration (the first increment), pieces merged in file
@@ -76,22 +77,27 @@ impl Mesh {
     }
     /// Centroid of each cell: the arithmetic mean of its points' coordinates (all nodes, corner
     /// and mid-side alike; not the volume centroid of distorted or curved cells). A cell without
-    /// points gets the origin.
+    /// points gets the origin. Computed in parallel.
     pub fn centroids(&self) -> Vec<[f64; 3]> {
         (0..self.n_cells())
-            .map(|c| {
-                let ids = self.cell_points(c);
-                let mut s = [0.0; 3];
-                for &i in ids {
-                    let p = self.points[i];
-                    s[0] += p[0];
-                    s[1] += p[1];
-                    s[2] += p[2];
-                }
-                let n = ids.len().max(1) as f64;
-                [s[0] / n, s[1] / n, s[2] / n]
-            })
+            .into_par_iter()
+            .map(|c| self.centroid(c))
             .collect()
+    }
+    /// Centroid of cell `cell` (see [`Mesh::centroids`]).
+    ///
+    /// Panics if `cell >= n_cells()`.
+    pub fn centroid(&self, cell: usize) -> [f64; 3] {
+        let ids = self.cell_points(cell);
+        let mut s = [0.0; 3];
+        for &i in ids {
+            let p = self.points[i];
+            s[0] += p[0];
+            s[1] += p[1];
+            s[2] += p[2];
+        }
+        let n = ids.len().max(1) as f64;
+        [s[0] / n, s[1] / n, s[2] / n]
     }
     /// True when all points have exactly the same z coordinate: a 2-D model (axisymmetric, plane
     /// strain or plane stress). An empty mesh is not planar.
@@ -105,75 +111,123 @@ impl Mesh {
     /// Appends one piece, validating its cells: offsets increase and end at the connectivity
     /// length, point ids are below the piece's point count, types are known and fixed-size types
     /// have their node count. `offsets` has n_cells + 1 entries starting at 0.
+    ///
+    /// The cells are checked in parallel chunks; the error is the one of the lowest failing
+    /// cell, as a serial check would give. The first piece's arrays are moved in, not copied.
     #[allow(clippy::too_many_arguments)]
     pub(crate) fn push_piece(
         &mut self,
         path: &Path,
         piece: usize,
         points: Vec<[f64; 3]>,
-        connectivity: &[usize],
-        offsets: &[usize],
-        types: &[u8],
+        connectivity: Vec<usize>,
+        offsets: Vec<usize>,
+        types: Vec<u8>,
     ) -> Result<(), Error> {
-        let bad = |detail: String| Error::BadCells {
-            path: path.to_path_buf(),
-            piece,
-            detail,
-        };
-        let n = types.len();
-        if offsets.len() != n + 1 || offsets.first() != Some(&0) {
-            return Err(bad(format!(
-                "{} offsets for {n} cells",
-                offsets.len().saturating_sub(1)
-            )));
-        }
         let np = points.len();
-        for c in 0..n {
-            let (a, b) = (offsets[c], offsets[c + 1]);
-            if b < a || b > connectivity.len() {
-                return Err(bad(format!(
-                    "offset {b} of cell {c} is out of range (connectivity has {} entries)",
-                    connectivity.len()
-                )));
+        let n = types.len();
+        check_piece(path, piece, np, &connectivity, &offsets, &types)?;
+        if self.pieces.is_empty() {
+            self.points = points;
+            self.connectivity = connectivity;
+            self.offsets = offsets;
+            self.types = types;
+        } else {
+            let base_p = self.points.len();
+            let base_c = self.connectivity.len();
+            self.points.extend_from_slice(&points);
+            self.connectivity
+                .extend(connectivity.iter().map(|&i| i + base_p));
+            if self.offsets.is_empty() {
+                self.offsets.push(0);
             }
-            let kind = cell_kind(types[c])
-                .ok_or_else(|| bad(format!("unknown cell type {} of cell {c}", types[c])))?;
-            if let NodeCount::Fixed(k) = kind.nodes
-                && b - a != k
-            {
-                return Err(bad(format!(
-                    "cell {c} of type {} has {} points, expected {k}",
-                    kind.name,
-                    b - a
-                )));
-            }
-            if let Some(&id) = connectivity[a..b].iter().find(|&&id| id >= np) {
-                return Err(bad(format!(
-                    "cell {c} refers to point {id}, the piece has {np} points"
-                )));
-            }
+            self.offsets
+                .extend(offsets[1..].iter().map(|&o| o + base_c));
+            self.types.extend_from_slice(&types);
         }
-        if offsets[n] != connectivity.len() {
-            return Err(bad(format!(
-                "the last offset is {} but the connectivity has {} entries",
-                offsets[n],
-                connectivity.len()
-            )));
-        }
-        let base_p = self.points.len();
-        let base_c = self.connectivity.len();
-        self.points.extend_from_slice(&points);
-        self.connectivity
-            .extend(connectivity.iter().map(|&i| i + base_p));
-        if self.offsets.is_empty() {
-            self.offsets.push(0);
-        }
-        self.offsets
-            .extend(offsets[1..].iter().map(|&o| o + base_c));
-        self.types.extend_from_slice(types);
         self.pieces.push((np, n));
         Ok(())
     }
+}
+
+/// Validates one piece's cells against its point count `np` (the checks of
+/// [`Mesh::push_piece`]); the error names the lowest failing cell.
+pub(crate) fn check_piece(
+    path: &Path,
+    piece: usize,
+    np: usize,
+    connectivity: &[usize],
+    offsets: &[usize],
+    types: &[u8],
+) -> Result<(), Error> {
+    let bad = |detail: String| Error::BadCells {
+        path: path.to_path_buf(),
+        piece,
+        detail,
+    };
+    let n = types.len();
+    if offsets.len() != n + 1 || offsets.first() != Some(&0) {
+        return Err(bad(format!(
+            "{} offsets for {n} cells",
+            offsets.len().saturating_sub(1)
+        )));
+    }
+    if let Some((_, detail)) = first_bad_cell(connectivity, offsets, types, np) {
+        return Err(bad(detail));
+    }
+    if offsets[n] != connectivity.len() {
+        return Err(bad(format!(
+            "the last offset is {} but the connectivity has {} entries",
+            offsets[n],
+            connectivity.len()
+        )));
+    }
+    Ok(())
+}
+
+/// Cells per parallel validation chunk.
+const CHECK_CHUNK: usize = 16 * 1024;
+
+/// The lowest cell that fails a check of [`Mesh::push_piece`], with its message; `offsets`
+/// has `types.len() + 1` entries.
+fn first_bad_cell(
+    connectivity: &[usize],
+    offsets: &[usize],
+    types: &[u8],
+    np: usize,
+) -> Option<(usize, String)> {
+    let check = |c: usize| -> Option<String> {
+        let (a, b) = (offsets[c], offsets[c + 1]);
+        if b < a || b > connectivity.len() {
+            return Some(format!(
+                "offset {b} of cell {c} is out of range (connectivity has {} entries)",
+                connectivity.len()
+            ));
+        }
+        let Some(kind) = cell_kind(types[c]) else {
+            return Some(format!("unknown cell type {} of cell {c}", types[c]));
+        };
+        if let NodeCount::Fixed(k) = kind.nodes
+            && b - a != k
+        {
+            return Some(format!(
+                "cell {c} of type {} has {} points, expected {k}",
+                kind.name,
+                b - a
+            ));
+        }
+        connectivity[a..b]
+            .iter()
+            .find(|&&id| id >= np)
+            .map(|id| format!("cell {c} refers to point {id}, the piece has {np} points"))
+    };
+    let n = types.len();
+    (0..n.div_ceil(CHECK_CHUNK))
+        .into_par_iter()
+        .filter_map(|k| {
+            (k * CHECK_CHUNK..((k + 1) * CHECK_CHUNK).min(n)).find_map(|c| check(c).map(|d| (c, d)))
+        })
+        .min_by_key(|(c, _)| *c)
 }
 
 #[cfg(test)]
@@ -188,9 +242,16 @@ mod tests {
             [1.0, 1.0, 0.0],
             [0.0, 1.0, 0.0],
         ];
-        m.push_piece(Path::new("a"), 0, pts.clone(), &[0, 1, 2, 3], &[0, 4], &[9])
-            .unwrap();
-        m.push_piece(Path::new("a"), 1, pts, &[0, 1, 2], &[0, 3], &[5])
+        m.push_piece(
+            Path::new("a"),
+            0,
+            pts.clone(),
+            vec![0, 1, 2, 3],
+            vec![0, 4],
+            vec![9],
+        )
+        .unwrap();
+        m.push_piece(Path::new("a"), 1, pts, vec![0, 1, 2], vec![0, 3], vec![5])
             .unwrap();
         m
     }
@@ -217,19 +278,40 @@ mod tests {
         let mut m = Mesh::default();
         let pts = vec![[0.0; 3]; 3];
         let e = m
-            .push_piece(Path::new("a"), 0, pts.clone(), &[0, 1, 7], &[0, 3], &[5])
+            .push_piece(
+                Path::new("a"),
+                0,
+                pts.clone(),
+                vec![0, 1, 7],
+                vec![0, 3],
+                vec![5],
+            )
             .unwrap_err();
         assert!(e.to_string().contains("refers to point 7"), "{e}");
         let e = m
-            .push_piece(Path::new("a"), 0, pts.clone(), &[0, 1, 2], &[0, 4], &[5])
+            .push_piece(
+                Path::new("a"),
+                0,
+                pts.clone(),
+                vec![0, 1, 2],
+                vec![0, 4],
+                vec![5],
+            )
             .unwrap_err();
         assert!(e.to_string().contains("out of range"), "{e}");
         let e = m
-            .push_piece(Path::new("a"), 0, pts.clone(), &[0, 1, 2], &[0, 3], &[99])
+            .push_piece(
+                Path::new("a"),
+                0,
+                pts.clone(),
+                vec![0, 1, 2],
+                vec![0, 3],
+                vec![99],
+            )
             .unwrap_err();
         assert!(e.to_string().contains("unknown cell type 99"), "{e}");
         let e = m
-            .push_piece(Path::new("a"), 0, pts, &[0, 1, 2], &[0, 3], &[9])
+            .push_piece(Path::new("a"), 0, pts, vec![0, 1, 2], vec![0, 3], vec![9])
             .unwrap_err();
         assert!(e.to_string().contains("expected 4"), "{e}");
     }

@@ -4,7 +4,7 @@
 use std::fs::File;
 use std::ops::Range;
 use std::path::{Path, PathBuf};
-use std::sync::Mutex;
+use std::sync::{Mutex, OnceLock};
 
 use crate::decode::{self, Ctx, F64Sink, I64Sink, Layout, Payload, Request};
 use crate::error::{Error, Result};
@@ -361,9 +361,29 @@ fn xml_piece_into_mesh(
     scratch: &mut Vec<u8>,
     mesh: &mut Mesh,
 ) -> Result<()> {
-    let points = piece_points(path, bytes, layout, piece, index, scratch)?;
+    // Points and cells are independent: decode them at the same time.
+    let mut cell_scratch = Vec::new();
+    let (points, cells) = rayon::join(
+        || piece_points(path, bytes, layout, piece, index, scratch),
+        || xml_piece_cells(path, bytes, layout, piece, index, &mut cell_scratch),
+    );
+    // the points' error first, as when they were decoded first
+    let points = points?;
+    let (conn, offsets, types) = cells?;
+    mesh.push_piece(path, index, points, conn, offsets, types)
+}
+
+/// The connectivity, offsets (with a leading 0) and types of one XML piece.
+fn xml_piece_cells(
+    path: &Path,
+    bytes: &[u8],
+    layout: Layout,
+    piece: &PieceDesc,
+    index: usize,
+    scratch: &mut Vec<u8>,
+) -> Result<(Vec<usize>, Vec<usize>, Vec<u8>)> {
     let nc = piece.n_cells;
-    let (conn, offsets, types) = if nc == 0 {
+    Ok(if nc == 0 {
         (Vec::new(), vec![0], Vec::new())
     } else {
         let missing = |what: &str| Error::MissingArray {
@@ -438,8 +458,7 @@ fn xml_piece_into_mesh(
         offsets.push(0);
         offsets.extend_from_slice(&ends);
         (conn, offsets, types)
-    };
-    mesh.push_piece(path, index, points, &conn, &offsets, &types)
+    })
 }
 
 fn layout_is_binary(p: &Payload) -> bool {
@@ -601,7 +620,7 @@ fn build_mesh(loaded: &Loaded, scratch: &mut Vec<u8>) -> Result<Mesh> {
                 } else {
                     c.offsets
                 };
-                mesh.push_piece(&file.path, 0, pts, &c.connectivity, &offsets, &c.types)?;
+                mesh.push_piece(&file.path, 0, pts, c.connectivity, offsets, c.types)?;
             }
         }
     }
@@ -617,7 +636,10 @@ pub struct Series {
     increments: Vec<IncrementInfo>,
     /// The data files of each increment (several for `.pvd` parts of one timestep).
     parts: Vec<Vec<PathBuf>>,
-    mesh: Mesh,
+    /// (points, cells) of each piece of the first increment, from its headers.
+    pieces: Vec<(usize, usize)>,
+    /// The reference mesh, decoded on first request ([`Series::mesh`]).
+    mesh: OnceLock<Mesh>,
     fields: Vec<FieldInfo>,
 }
 
@@ -627,8 +649,8 @@ impl std::fmt::Debug for Series {
             .field("path", &self.path)
             .field("discovery", &self.discovery)
             .field("increments", &self.increments.len())
-            .field("points", &self.mesh.n_points())
-            .field("cells", &self.mesh.n_cells())
+            .field("points", &self.n_points())
+            .field("cells", &self.n_cells())
             .field("fields", &self.fields.len())
             .finish()
     }
@@ -636,12 +658,12 @@ impl std::fmt::Debug for Series {
 
 impl Series {
     /// Opens a `.vtu`, `.pvtu`, `.pvd`, legacy `.vtk` file or a folder, reading the catalogue
-    /// only: increments and times, the reference mesh (first increment's points and cells) and
-    /// the first increment's fields.
+    /// only: increments and times, the first increment's point and cell counts and its fields.
     ///
-    /// Cost: the first increment's headers are parsed and its mesh decoded; a `.pvd` is checked
-    /// for missing members; for a numbered folder every file's header is parsed (legacy files:
-    /// scanned) to find its TimeValue. No field array is decoded.
+    /// Cost: the first increment's headers are parsed; a `.pvd` is checked for missing
+    /// members; for a numbered folder every file's header is parsed (legacy files: scanned) to
+    /// find its TimeValue. Nothing is decoded: the reference mesh on the first call of
+    /// [`Series::mesh`], field arrays through [`Series::increment`].
     pub fn open(path: &Path) -> Result<Series> {
         let meta = std::fs::metadata(path).map_err(|source| Error::Io {
             path: path.to_path_buf(),
@@ -708,14 +730,15 @@ impl Series {
                 l
             }
         };
-        let mesh = build_mesh(&first, &mut scratch)?;
+        let pieces = first.piece_counts();
         let fields = catalogue(&first)?;
         Ok(Series {
             path: path.to_path_buf(),
             discovery,
             increments,
             parts,
-            mesh,
+            pieces,
+            mesh: OnceLock::new(),
             fields,
         })
     }
@@ -736,9 +759,44 @@ impl Series {
     pub fn discovery(&self) -> &Discovery {
         &self.discovery
     }
-    /// The reference mesh: points and cells of the first increment.
-    pub fn mesh(&self) -> &Mesh {
-        &self.mesh
+    /// The reference mesh: points and cells of the first increment, decoded and validated on
+    /// the first call (its cells: offsets, point ids, types and node counts), then kept.
+    ///
+    /// Commands that need only cell or point data (a full-field damage pass) never pay for
+    /// it, or can decode it while they work; an error (a bad cell, a truncated array) is
+    /// returned by every call until one succeeds.
+    pub fn mesh(&self) -> Result<&Mesh> {
+        if let Some(m) = self.mesh.get() {
+            return Ok(m);
+        }
+        let files = self.parts.first().map_or(&[][..], Vec::as_slice);
+        let mut loaded = Loaded::new();
+        for f in files {
+            loaded.load(f)?;
+        }
+        let mesh = build_mesh(&loaded, &mut Vec::new())?;
+        if mesh.pieces() != self.pieces.as_slice() {
+            return Err(Error::SeriesChanged {
+                path: files.first().cloned().unwrap_or_default(),
+                what: "point and cell counts of the pieces since the series was opened".into(),
+                expected: format!("{:?}", self.pieces),
+                found: format!("{:?}", mesh.pieces()),
+            });
+        }
+        Ok(self.mesh.get_or_init(|| mesh))
+    }
+    /// Number of points of the reference mesh (from the headers; no decoding).
+    pub fn n_points(&self) -> usize {
+        self.pieces.iter().map(|p| p.0).sum()
+    }
+    /// Number of cells of the reference mesh (from the headers; no decoding).
+    pub fn n_cells(&self) -> usize {
+        self.pieces.iter().map(|p| p.1).sum()
+    }
+    /// Point and cell counts of each piece of the first increment, in merge order (from the
+    /// headers; no decoding).
+    pub fn pieces(&self) -> &[(usize, usize)] {
+        &self.pieces
     }
     /// Point and cell arrays of the first increment (first piece), point data first.
     pub fn fields(&self) -> &[FieldInfo] {
@@ -777,7 +835,7 @@ impl Series {
             loaded.load(f)?;
         }
         let counts = loaded.piece_counts();
-        let reference = self.mesh.pieces();
+        let reference = self.pieces.as_slice();
         let first_file = files.first().cloned().unwrap_or_default();
         if counts.len() != reference.len() {
             return Err(Error::SeriesChanged {
@@ -1126,8 +1184,8 @@ impl<'s> Increment<'s> {
 
     fn count(&self, location: Location) -> usize {
         match location {
-            Location::Point => self.series.mesh.n_points(),
-            Location::Cell => self.series.mesh.n_cells(),
+            Location::Point => self.series.n_points(),
+            Location::Cell => self.series.n_cells(),
         }
     }
 
@@ -1140,7 +1198,7 @@ impl<'s> Increment<'s> {
         for (k, &(f, p)) in self.loaded.pieces.iter().enumerate() {
             let file = &self.loaded.files[f];
             let bytes = file.bytes.get();
-            let (np, nc) = self.series.mesh.pieces()[k];
+            let (np, nc) = self.series.pieces[k];
             let n = match info.location {
                 Location::Point => np,
                 Location::Cell => nc,
@@ -1318,7 +1376,7 @@ pub(crate) fn fuzz_legacy(bytes: &[u8]) -> Result<usize> {
     } else {
         c.offsets
     };
-    mesh.push_piece(path, 0, pts, &c.connectivity, &offsets, &c.types)?;
+    mesh.push_piece(path, 0, pts, c.connectivity, offsets, c.types)?;
     let mut out = Vec::new();
     let mut n = mesh.n_points();
     for i in 0..l.arrays().len() {

@@ -110,15 +110,7 @@ pub fn write_vtu_with(
     let np = mesh_points.len();
     let nc = cells.types.len();
     // the reader's own validation of cells
-    Mesh::default()
-        .push_piece(
-            path,
-            0,
-            mesh_points.to_vec(),
-            cells.connectivity,
-            cells.offsets,
-            cells.types,
-        )
+    crate::mesh::check_piece(path, 0, np, cells.connectivity, cells.offsets, cells.types)
         .map_err(|e| bad(e.to_string()))?;
     for (list, n, loc) in [(point_data, np, "point"), (cell_data, nc, "cell")] {
         for a in list {

@@ -22,9 +22,10 @@ impl Dir {
     }
 }
 
-/// Opens and reads every field of every increment; the first error.
+/// Opens, decodes the reference mesh and reads every field of every increment; the first error.
 fn open_and_read(path: &Path) -> Result<(), Error> {
     let s = Series::open(path)?;
+    s.mesh()?;
     let mut buf = Vec::new();
     for info in s.increments() {
         let inc = s.increment(info.index)?;
@@ -327,6 +328,41 @@ fn unknown_cell_type() {
         ),
     );
     check(&p, &["unknown cell type 99", "piece 0"]);
+}
+
+#[test]
+fn bad_cells_are_found_when_the_mesh_is_first_asked_for() {
+    // Opening reads headers only: the counts come from them, the cells are validated by the
+    // first `mesh()` call, and every later call gives the same error (nothing half-built is kept).
+    let d = Dir::new();
+    let p = d.put(
+        "late.vtu",
+        hex_file_cells(
+            "",
+            "type=\"Float64\" NumberOfComponents=\"6\" format=\"ascii\"",
+            "0 1 2 3 4 5",
+            None,
+            "0 1 2 3 4 5 6 9",
+            "8",
+            "12",
+        ),
+    );
+    let s = Series::open(&p).unwrap();
+    assert_eq!((s.n_points(), s.n_cells()), (8, 1));
+    assert_eq!(s.pieces(), &[(8, 1)]);
+    let mut buf = Vec::new();
+    s.increment(0)
+        .unwrap()
+        .read("stress", Location::Cell, &mut buf)
+        .unwrap();
+    assert_eq!(buf, [0.0, 1.0, 2.0, 3.0, 4.0, 5.0]);
+    for _ in 0..2 {
+        let e = s.mesh().unwrap_err().to_string();
+        assert!(
+            e.contains("refers to point 9") && e.contains("late.vtu"),
+            "{e}"
+        );
+    }
 }
 
 #[test]

@@ -60,11 +60,11 @@ fn check_piece_values(series: &Series, pieces: &[Piece], label: &str) {
     let mut buf = Vec::new();
     let np: usize = pieces.iter().map(|p| p.points.len()).sum();
     let nc: usize = pieces.iter().map(|p| p.types.len()).sum();
-    assert_eq!(series.mesh().n_points(), np, "{label}");
-    assert_eq!(series.mesh().n_cells(), nc, "{label}");
+    assert_eq!(series.mesh().unwrap().n_points(), np, "{label}");
+    assert_eq!(series.mesh().unwrap().n_cells(), nc, "{label}");
     // points merged in order
     let pts: Vec<[f64; 3]> = pieces.iter().flat_map(|p| p.points.clone()).collect();
-    assert_eq!(series.mesh().points(), &pts[..], "{label}");
+    assert_eq!(series.mesh().unwrap().points(), &pts[..], "{label}");
     for (k, a) in pieces[0].cell_data.iter().enumerate() {
         let f = inc.read(&a.name, Location::Cell, &mut buf).unwrap();
         assert_eq!(f.scalar_type, a.ty, "{label}");
@@ -201,7 +201,10 @@ fn writer_round_trip_and_pvd() {
             .unwrap();
         assert_eq!(buf, vec![2.0 * t]);
     }
-    assert_eq!(s.mesh().cell_type_counts(), vec![(12, "VTK_HEXAHEDRON", 3)]);
+    assert_eq!(
+        s.mesh().unwrap().cell_type_counts(),
+        vec![(12, "VTK_HEXAHEDRON", 3)]
+    );
     // the folder holds exactly one .pvd: it is used
     let f = Series::open(dir.path()).unwrap();
     assert!(matches!(f.discovery(), Discovery::FolderPvd(_)));
@@ -277,8 +280,8 @@ fn pvtu_pieces_merged_in_order() {
     let s = Series::open(&pv).unwrap();
     check_piece_values(&s, &pieces, "pvtu");
     // connectivity of piece 1 offset by the 16 points of piece 0
-    assert_eq!(s.mesh().cell_points(3)[0], 16);
-    assert_eq!(s.mesh().pieces(), &[(16, 3), (12, 2), (20, 4)]);
+    assert_eq!(s.mesh().unwrap().cell_points(3)[0], 16);
+    assert_eq!(s.mesh().unwrap().pieces(), &[(16, 3), (12, 2), (20, 4)]);
 }
 
 #[test]
@@ -288,8 +291,8 @@ fn legacy_file_through_the_series() {
     let p = put(dir.path(), "one.vtk", text.as_bytes());
     let s = Series::open(&p).unwrap();
     assert_eq!(s.increments()[0].time, 2.5);
-    assert_eq!(s.mesh().n_cells(), 1);
-    assert!(s.mesh().is_planar());
+    assert_eq!(s.mesh().unwrap().n_cells(), 1);
+    assert!(s.mesh().unwrap().is_planar());
     let mut buf = Vec::new();
     let inc = s.increment(0).unwrap();
     let f = inc.read("stress", Location::Cell, &mut buf).unwrap();
@@ -390,7 +393,7 @@ fn pvd_parts_of_one_timestep_are_pieces() {
     let s = Series::open(&pvd).unwrap();
     assert_eq!(s.increments().len(), 2);
     assert_eq!(s.increment_files(0).len(), 2);
-    assert_eq!(s.mesh().pieces(), &[(12, 2), (16, 3)]);
+    assert_eq!(s.mesh().unwrap().pieces(), &[(12, 2), (16, 3)]);
     let mut buf = Vec::new();
     s.increment(1)
         .unwrap()

@@ -69,7 +69,7 @@ fn different_files_at_one_timestep_are_parts_of_one_increment() {
     assert_eq!(names(0), ["s0.vtu", "s1.vtu"]);
     assert_eq!(names(1), ["s2.vtu", "s3.vtu"]);
     // the mesh holds both parts' cells (each step of series_pvd has 6 cells)
-    assert_eq!(s.mesh().pieces().len(), 2);
+    assert_eq!(s.mesh().unwrap().pieces().len(), 2);
 }
 
 #[test]

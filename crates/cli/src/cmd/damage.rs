@@ -8,7 +8,8 @@
 
 use ductrace_campaign::Study;
 use ductrace_locus::{
-    CellDamage, DamageRule, IncrementFields, Locus, accumulate, start_cells, update_cells,
+    CellDamage, DamageRule, FractureLocus, IncrementFields, Locus, accumulate, start_cells,
+    update_cells,
 };
 use ductrace_track::{HistoryRequest, Selector};
 use ductrace_vtk::{Location, Series};
@@ -20,7 +21,7 @@ use crate::cmd::fit::path_to_stop;
 use crate::cmd::history::coords;
 use crate::cmd::table::Campaign;
 use crate::failure::Failure;
-use crate::fieldpass::FieldState;
+use crate::fieldpass::{FieldState, Lode};
 use crate::locusfile;
 use crate::output::{self, Format};
 
@@ -226,6 +227,7 @@ pub fn field_damage(
     options: &ductrace_track::FieldOptions,
     locus: &Locus,
     rule: DamageRule,
+    lode: Lode,
     mut each: impl FnMut(usize, &FieldState, &[CellDamage]) -> Result<(), Failure>,
 ) -> Result<FieldDamage, Failure> {
     let fields = ductrace_track::fields::resolve(series, options, true, false)?;
@@ -253,7 +255,7 @@ pub fn field_damage(
                 }
             },
             || -> Result<(), Failure> {
-                state.evaluate(series, k, &fields, allow)?;
+                state.evaluate(series, k, &fields, allow, lode)?;
                 accumulate_increment(series, locus, rule, k, allow, &mut state, &mut cells)
             },
         );
@@ -290,13 +292,18 @@ fn accumulate_increment(
             }
         }
     }
-    let fields_k = IncrementFields::new(
-        k,
-        &state.eqps,
-        &state.triaxiality,
-        &state.lode_angle_param,
-        &state.defined,
-    )
+    // θ̄ is there unless the pass left it out (Lode::Skip) for a locus that ignores it.
+    let fields_k = if state.lode_angle_param.len() == state.eqps.len() {
+        IncrementFields::new(
+            k,
+            &state.eqps,
+            &state.triaxiality,
+            &state.lode_angle_param,
+            &state.defined,
+        )
+    } else {
+        IncrementFields::without_lode_angle(k, &state.eqps, &state.triaxiality, &state.defined)
+    }
     .map_err(|e| Failure::data(format!("{}: {e}", series.path().display())))?;
     if k == 0 {
         *cells = vec![CellDamage::new(); state.eqps.len()];
@@ -328,11 +335,19 @@ fn accumulate_increment(
     .map_err(|e| Failure::data(format!("{}: {e}", series.path().display())))
 }
 
-fn field_json(series: &Series, fd: &FieldDamage, rule: DamageRule, top: usize) -> Value {
-    let reference = series.mesh();
-    let centroids = match fd.location {
-        Location::Cell => reference.centroids(),
-        Location::Point => reference.points().to_vec(),
+fn field_json(
+    series: &Series,
+    fd: &FieldDamage,
+    rule: DamageRule,
+    top: usize,
+) -> Result<Value, Failure> {
+    let reference = series.mesh()?;
+    // Reference coordinates of the reported entities only (cell centroid or point).
+    let coords_of = |i: usize| -> Option<[f64; 3]> {
+        match fd.location {
+            Location::Cell => (i < reference.n_cells()).then(|| reference.centroid(i)),
+            Location::Point => reference.points().get(i).copied(),
+        }
     };
     let loc = fd.location.to_string();
     let first = fd
@@ -363,18 +378,18 @@ fn field_json(series: &Series, fd: &FieldDamage, rule: DamageRule, top: usize) -
         ranked.truncate(k);
     }
     ranked.sort_by(order);
-    let entry = |&(i, d): &(usize, f64)| json!({"location": loc, "id": i, "damage": d, "coords": centroids.get(i)});
-    json!({
+    let entry = |&(i, d): &(usize, f64)| json!({"location": loc, "id": i, "damage": d, "coords": coords_of(i)});
+    Ok(json!({
         "rule": rule_name(rule),
         "first": first.map(|(i, x)| json!({
             "location": loc, "id": i, "increment": x, "time": time_at(x),
-            "coords": centroids.get(i),
+            "coords": coords_of(i),
         })),
         "max": ranked.first().map(entry),
         "runners_up": ranked.iter().skip(1).map(entry).collect::<Vec<_>>(),
         "increments": fd.times.len(),
         "entities": fd.cells.len(),
-    })
+    }))
 }
 
 /// Runs `ductrace damage`.
@@ -406,8 +421,21 @@ pub fn run(args: &DamageArgs, quiet: bool) -> Result<(), Failure> {
     } else {
         let series = Series::open(&args.input)?;
         let options = super::field_options(&args.fields)?;
-        let fd = field_damage(&series, &options, &locus, rule, |_, _, _| Ok(()))?;
-        let mut v = field_json(&series, &fd, rule, 5);
+        // θ̄ only for a locus that depends on it (Johnson–Cook does not).
+        let lode = if locus.uses_lode_angle() {
+            Lode::Compute
+        } else {
+            Lode::Skip
+        };
+        // The reference mesh (for the coordinates of the reported entities) is decoded while
+        // the pass runs: the pass needs only cell or point data.
+        let (fd, mesh) = rayon::join(
+            || field_damage(&series, &options, &locus, rule, lode, |_, _, _| Ok(())),
+            || series.mesh().map(|_| ()),
+        );
+        let fd = fd?;
+        mesh?;
+        let mut v = field_json(&series, &fd, rule, 5)?;
         // The history of the critical entity (the first to reach D = 1, else the largest D),
         // read back for that entity alone, with its damage per increment.
         let critical = v["first"]["id"].as_u64().or(v["max"]["id"].as_u64());

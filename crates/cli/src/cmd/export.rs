@@ -16,7 +16,7 @@ use ductrace_vtk::{Location, Series};
 use crate::args::ExportArgs;
 use crate::cmd::damage::field_damage;
 use crate::failure::Failure;
-use crate::fieldpass::FieldState;
+use crate::fieldpass::{FieldState, Lode};
 use crate::locusfile;
 use crate::output;
 use crate::progress;
@@ -54,7 +54,7 @@ pub fn run(args: &ExportArgs, quiet: bool) -> Result<(), Failure> {
     }
     std::fs::create_dir_all(dir).map_err(|e| Failure::io(dir, "create", e))?;
     remove_stale_temporaries(dir);
-    let mesh = series.mesh();
+    let mesh = series.mesh()?;
     let cells = CellsRef::of(mesh);
     let fields = ductrace_track::fields::resolve(&series, &options, true, false)?;
     let location = fields.location;
@@ -172,6 +172,7 @@ pub fn run(args: &ExportArgs, quiet: bool) -> Result<(), Failure> {
                 &options,
                 l,
                 DamageRule::Linear,
+                Lode::Compute,
                 |k, state, cells_d| write_one(k, state, Some(cells_d), DamageRule::Linear),
             )?;
         }
@@ -179,7 +180,13 @@ pub fn run(args: &ExportArgs, quiet: bool) -> Result<(), Failure> {
             let mut state = FieldState::default();
             for info in series.increments() {
                 let inc = series.increment(info.index)?;
-                state.load(&series, &inc, &fields, options.allow_nonfinite)?;
+                state.load(
+                    &series,
+                    &inc,
+                    &fields,
+                    options.allow_nonfinite,
+                    Lode::Compute,
+                )?;
                 write_one(info.index, &state, None, DamageRule::Linear)?;
             }
         }

@@ -61,7 +61,7 @@ struct ProbeRec {
 /// Runs `ductrace probe`.
 pub fn run(args: &ProbeArgs) -> Result<(), Failure> {
     let series = Series::open(&args.result)?;
-    let mesh = series.mesh();
+    let mesh = series.mesh()?;
     let overrides = RoleOverrides {
         stress: args.fields.stress.clone(),
         eqps: args.fields.eqps.clone(),
