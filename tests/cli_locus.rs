@@ -203,6 +203,70 @@ fn full_field_damage() {
     );
 }
 
+/// Full-field damage decodes uncompressed binary data chunk by chunk in the threads that
+/// evaluate it, and compressed data whole through a two-stage pipeline: the same cells in
+/// both forms (the campaign's zlib-compressed result and its appended-raw export, whose
+/// Float32 values widen to Float64 exactly) give the same answer, bit for bit.
+#[test]
+fn full_field_damage_is_the_same_whichever_way_the_data_are_decoded() {
+    let dir = tempfile::tempdir().unwrap();
+    let fit = dir.path().join("fit.json");
+    // Johnson–Cook (no θ̄ computed) and Hosford–Coulomb (θ̄ computed) loci
+    let jc = r#"{"model": "jc", "parameters": {"D1": 0.05, "D2": 3.44, "D3": -2.12}}"#;
+    let t = truth();
+    let l = &t["true_locus"];
+    let hc = format!(
+        r#"{{"model": "hc", "parameters": {{"a": {}, "b": {}, "c": {}, "n": {}}}}}"#,
+        l["a"], l["b"], l["c"], l["n"]
+    );
+    let result = root().join("fixtures/campaign/nrb_r4/nrb_r4.pvd");
+    let out = dir.path().join("raw");
+    ductrace()
+        .args([
+            "export",
+            result.to_str().unwrap(),
+            "-o",
+            out.to_str().unwrap(),
+        ])
+        .args(["--location", "cell", "-q"])
+        .args(common::campaign_field_options())
+        .assert()
+        .success();
+    let exported = out.join("derived.pvd");
+    for locus in [jc.to_string(), hc] {
+        std::fs::write(&fit, &locus).unwrap();
+        let names = common::campaign_field_options();
+        let mut a = vec![
+            "damage",
+            result.to_str().unwrap(),
+            "--locus",
+            fit.to_str().unwrap(),
+            "--location",
+            "cell",
+            "--format",
+            "json",
+        ];
+        a.extend(names.iter().map(String::as_str));
+        let zlib = run_json(&a);
+        let raw = run_json(&[
+            "damage",
+            exported.to_str().unwrap(),
+            "--locus",
+            fit.to_str().unwrap(),
+            "--stress",
+            "stress",
+            "--eqps",
+            "eqps",
+            "--format",
+            "json",
+        ]);
+        for key in ["first", "max", "runners_up", "increments", "entities"] {
+            assert_eq!(zlib[key], raw[key], "{locus}: {key}");
+        }
+        assert!(!zlib["max"]["id"].is_null(), "{locus}");
+    }
+}
+
 /// `export` writes a series ductrace reads back with the same histories (derived fields
 /// recomputed from the exported stress agree with the original to 1e-12).
 #[test]

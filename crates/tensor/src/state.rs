@@ -198,7 +198,7 @@ pub(crate) fn lode_angle_param_of(xi: f64) -> f64 {
 /// The invariants of six components in VTK's order (see the module doc for the formulas and
 /// the scaling); finite input is the caller's to ensure, non-finite input gives a value
 /// without panicking.
-#[inline]
+#[inline(always)]
 pub(crate) fn invariants(c: &[f64; 6]) -> Invariants {
     let scale = c.iter().fold(0.0_f64, |acc, v| acc.max(v.abs()));
     if scale == 0.0 || !scale.is_finite() {

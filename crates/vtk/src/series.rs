@@ -6,7 +6,7 @@ use std::ops::Range;
 use std::path::{Path, PathBuf};
 use std::sync::{Mutex, OnceLock};
 
-use crate::decode::{self, Ctx, F64Sink, I64Sink, Layout, Payload, Request};
+use crate::decode::{self, Compressor, Ctx, F64Sink, I64Sink, Layout, Payload, Request};
 use crate::error::{Error, Result};
 use crate::legacy::{LegacyFile, LegacyLocation};
 use crate::mesh::Mesh;
@@ -1147,6 +1147,30 @@ impl<'s> Increment<'s> {
         Ok(info)
     }
 
+    /// True when [`Increment::read_tuples`] of array `name` costs only the requested tuples'
+    /// bytes: every piece stores it as uncompressed binary (appended raw, appended or inline
+    /// base64). False for compressed data (a range costs whole blocks), ascii text and legacy
+    /// files (a range costs the whole array). A caller may then split one array's decoding
+    /// into ranges, one per thread, each decoded where it is used.
+    pub fn ranges_are_direct(&self, name: &str, location: Location) -> Result<bool> {
+        let info = self.series.field(name, Some(location))?;
+        Ok(self.loaded.pieces.iter().all(|&(f, p)| {
+            let FileData::Xml(h) = &self.loaded.files[f].data else {
+                return false;
+            };
+            let piece = &h.pieces[p];
+            let list = match info.location {
+                Location::Point => &piece.point_data,
+                Location::Cell => &piece.cell_data,
+            };
+            h.layout.compressor == Compressor::None
+                && list
+                    .iter()
+                    .find(|a| a.name == info.name)
+                    .is_some_and(|a| !matches!(a.payload, Payload::Ascii(_)))
+        }))
+    }
+
     /// This increment's point coordinates (merged numbering).
     pub fn points(&self, out: &mut Vec<[f64; 3]>) -> Result<()> {
         out.clear();
@@ -1192,7 +1216,14 @@ impl<'s> Increment<'s> {
     fn read_range(&self, info: &FieldInfo, range: Range<usize>, out: &mut Vec<f64>) -> Result<()> {
         out.clear();
         let c = info.components;
-        let mut scratch = self.scratch.lock().unwrap_or_else(|p| p.into_inner());
+        // Threads reading ranges of one increment at the same time do not wait for each
+        // other: a second reader uses its own scratch (left empty by raw data).
+        let mut local = Vec::new();
+        let mut guard = self.scratch.try_lock().ok();
+        let scratch: &mut Vec<u8> = match guard.as_deref_mut() {
+            Some(s) => s,
+            None => &mut local,
+        };
         let mut base = 0usize;
         let mut tmp = Vec::new();
         for (k, &(f, p)) in self.loaded.pieces.iter().enumerate() {
@@ -1247,7 +1278,7 @@ impl<'s> Increment<'s> {
                         n,
                         tlo * c..thi * c,
                         &what,
-                        &mut scratch,
+                        scratch,
                         out,
                     )?;
                 }

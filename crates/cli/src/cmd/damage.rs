@@ -11,8 +11,9 @@ use ductrace_locus::{
     CellDamage, DamageRule, FractureLocus, IncrementFields, Locus, accumulate, start_cells,
     update_cells,
 };
+use ductrace_track::fields::EqpsSource;
 use ductrace_track::{HistoryRequest, Selector};
-use ductrace_vtk::{Location, Series};
+use ductrace_vtk::{Increment, Location, Series};
 use rayon::prelude::*;
 use serde_json::{Value, json};
 
@@ -216,34 +217,86 @@ pub struct FieldDamage {
     pub times: Vec<f64>,
 }
 
+/// What a full-field damage pass must leave in the [`FieldState`] its callback sees.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct PassNeeds {
+    /// Compute θ̄ (the locus or the callback uses it).
+    pub lode: Lode,
+    /// Keep the decoded stress array (the callback writes it).
+    pub stress: bool,
+}
+
 /// Streams every increment of a result and accumulates damage at every entity.
 ///
-/// Two-stage pipeline: while increment k is evaluated and accumulated (in parallel over
-/// entities), increment k + 1 is decoded into a second [`FieldState`] (`rayon::join`), so
-/// decoding and arithmetic overlap. `each` still sees the increments in order, and errors
-/// are reported in increment order (those of k before the decoding error of k + 1).
+/// Uncompressed binary data whose stress the callback does not need
+/// ([`Increment::ranges_are_direct`], `needs.stress` false) are decoded chunk by chunk by
+/// the threads that evaluate them ([`FieldState::load_direct`]): nothing is copied whole.
+/// Otherwise a two-stage pipeline: while increment k is evaluated and accumulated (in
+/// parallel over entities), increment k + 1 is decoded into a second [`FieldState`]
+/// (`rayon::join`), so decoding (inflating, for compressed data) and arithmetic overlap.
+/// `each` sees the increments in order either way, and errors are reported in increment
+/// order (those of k before the decoding error of k + 1).
 pub fn field_damage(
     series: &Series,
     options: &ductrace_track::FieldOptions,
     locus: &Locus,
     rule: DamageRule,
-    lode: Lode,
+    needs: PassNeeds,
     mut each: impl FnMut(usize, &FieldState, &[CellDamage]) -> Result<(), Failure>,
 ) -> Result<FieldDamage, Failure> {
     let fields = ductrace_track::fields::resolve(series, options, true, false)?;
     let mut state = FieldState::default();
-    let mut spare = FieldState::default();
     let mut cells: Vec<CellDamage> = Vec::new();
     let mut times = Vec::new();
     let infos = series.increments();
-    if let Some(first) = infos.first() {
-        let inc = series.increment(first.index)?;
+    let allow = options.allow_nonfinite;
+    let lode = needs.lode;
+    let direct = |inc: &Increment<'_>| -> Result<bool, Failure> {
+        let eqps = match &fields.eqps {
+            Some(EqpsSource::Scalar(name)) => name,
+            _ => return Ok(false), // the fetch path words the error
+        };
+        Ok(!needs.stress
+            && inc.ranges_are_direct(&fields.stress, fields.location)?
+            && inc.ranges_are_direct(eqps, fields.location)?)
+    };
+    let first = match infos.first() {
+        Some(i) => Some(series.increment(i.index)?),
+        None => None,
+    };
+    if let Some(inc) = &first
+        && direct(inc)?
+    {
+        let mut inc = first;
+        for (pos, info) in infos.iter().enumerate() {
+            let k = info.index;
+            let this = match inc.take() {
+                Some(i) if pos == 0 => i,
+                _ => series.increment(k)?,
+            };
+            if direct(&this)? {
+                state.load_direct(series, &this, &fields, allow, lode)?;
+            } else {
+                state.load(series, &this, &fields, allow, lode)?;
+            }
+            drop(this);
+            accumulate_increment(series, locus, rule, k, allow, &mut state, &mut cells)?;
+            times.push(info.time);
+            each(k, &state, &cells)?;
+        }
+        return Ok(FieldDamage {
+            location: fields.location,
+            cells,
+            times,
+        });
+    }
+    let mut spare = FieldState::default();
+    if let Some(inc) = first {
         state.fetch(series, &inc, &fields)?;
     }
     for (pos, info) in infos.iter().enumerate() {
         let k = info.index;
         let next = infos.get(pos + 1).map(|i| i.index);
-        let allow = options.allow_nonfinite;
         let (fetched, done) = rayon::join(
             || -> Result<(), Failure> {
                 match next {
@@ -422,15 +475,18 @@ pub fn run(args: &DamageArgs, quiet: bool) -> Result<(), Failure> {
         let series = Series::open(&args.input)?;
         let options = super::field_options(&args.fields)?;
         // θ̄ only for a locus that depends on it (Johnson–Cook does not).
-        let lode = if locus.uses_lode_angle() {
-            Lode::Compute
-        } else {
-            Lode::Skip
+        let needs = PassNeeds {
+            lode: if locus.uses_lode_angle() {
+                Lode::Compute
+            } else {
+                Lode::Skip
+            },
+            stress: false,
         };
         // The reference mesh (for the coordinates of the reported entities) is decoded while
         // the pass runs: the pass needs only cell or point data.
         let (fd, mesh) = rayon::join(
-            || field_damage(&series, &options, &locus, rule, lode, |_, _, _| Ok(())),
+            || field_damage(&series, &options, &locus, rule, needs, |_, _, _| Ok(())),
             || series.mesh().map(|_| ()),
         );
         let fd = fd?;

@@ -14,7 +14,7 @@ use ductrace_vtk::write::{ArrayRef, CellsRef, VtuOptions, write_pvd, write_vtu_w
 use ductrace_vtk::{Location, Series};
 
 use crate::args::ExportArgs;
-use crate::cmd::damage::field_damage;
+use crate::cmd::damage::{PassNeeds, field_damage};
 use crate::failure::Failure;
 use crate::fieldpass::{FieldState, Lode};
 use crate::locusfile;
@@ -172,7 +172,10 @@ pub fn run(args: &ExportArgs, quiet: bool) -> Result<(), Failure> {
                 &options,
                 l,
                 DamageRule::Linear,
-                Lode::Compute,
+                PassNeeds {
+                    lode: Lode::Compute,
+                    stress: true,
+                },
                 |k, state, cells_d| write_one(k, state, Some(cells_d), DamageRule::Linear),
             )?;
         }
