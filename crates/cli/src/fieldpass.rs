@@ -439,6 +439,80 @@ mod tests {
         v.iter().map(|x| x.to_bits()).collect()
     }
 
+    /// Asserts that both decoding paths give the same bits (θ̄ computed).
+    fn assert_same_state(path: &std::path::Path) -> usize {
+        let s = Series::open(path).unwrap();
+        let fields =
+            ductrace_track::fields::resolve(&s, &FieldOptions::default(), true, false).unwrap();
+        let inc = s.increment(0).unwrap();
+        let mut whole = FieldState::default();
+        let mut direct = FieldState::default();
+        whole.load(&s, &inc, &fields, false, Lode::Compute).unwrap();
+        direct
+            .load_direct(&s, &inc, &fields, false, Lode::Compute)
+            .unwrap();
+        assert_eq!(bits(&whole.sigma_h), bits(&direct.sigma_h));
+        assert_eq!(bits(&whole.sigma_vm), bits(&direct.sigma_vm));
+        assert_eq!(bits(&whole.triaxiality), bits(&direct.triaxiality));
+        assert_eq!(
+            bits(&whole.lode_angle_param),
+            bits(&direct.lode_angle_param)
+        );
+        assert_eq!(whole.defined, direct.defined);
+        assert_eq!(bits(&whole.eqps), bits(&direct.eqps));
+        whole.eqps.len()
+    }
+
+    #[test]
+    fn direct_decoding_across_pieces_and_encodings() {
+        // Three pieces whose boundaries fall inside chunks of CHUNK cells, in each
+        // uncompressed binary encoding (direct) and, for contrast, compressed and ascii ones.
+        use ductrace_vtk::testenc::{self, Arr, Comp, Enc, Format, Piece};
+        let dir = tempfile::tempdir().unwrap();
+        let sizes = [3000usize, 2500, 3100];
+        let pieces: Vec<Piece> = sizes
+            .iter()
+            .enumerate()
+            .map(|(k, &n)| {
+                let mut p = Piece::hex_row(n, (k * 10_000) as f64);
+                let stress: Vec<f64> = (0..6 * n)
+                    .map(|i| ((i * 7919 + k * 31) % 1000) as f64 - 400.0)
+                    .collect();
+                p.cell_data.push(Arr::f64("stress", 6, stress));
+                p.cell_data.push(Arr::f64(
+                    "eqps",
+                    1,
+                    (0..n).map(|i| 1e-4 * i as f64).collect(),
+                ));
+                p
+            })
+            .collect();
+        let cases = [
+            (Format::AppendedRaw, Comp::None, true),
+            (Format::AppendedBase64, Comp::None, true),
+            (Format::InlineOneRun, Comp::None, true),
+            (Format::AppendedRaw, Comp::Zlib, false),
+            (Format::Ascii, Comp::None, false),
+        ];
+        for (i, (format, comp, direct)) in cases.into_iter().enumerate() {
+            let enc = Enc {
+                format,
+                comp,
+                ..Enc::default()
+            };
+            let path = dir.path().join(format!("p{i}.vtu"));
+            std::fs::write(&path, testenc::vtu(&enc, &pieces, None)).unwrap();
+            let s = Series::open(&path).unwrap();
+            let inc = s.increment(0).unwrap();
+            assert_eq!(
+                inc.ranges_are_direct("stress", Location::Cell).unwrap(),
+                direct,
+                "{format:?} {comp:?}"
+            );
+            assert_eq!(assert_same_state(&path), sizes.iter().sum::<usize>());
+        }
+    }
+
     #[test]
     fn direct_decoding_gives_the_same_state_and_errors_as_decoding_whole_arrays() {
         // Several chunks (CHUNK entities each) and a short last one.
