@@ -274,6 +274,25 @@ mod tests {
     }
 
     #[test]
+    fn the_lowest_bad_cell_is_reported_whichever_chunk_finishes_first() {
+        // Vertex cells over several validation chunks; two faults in different chunks.
+        let n = 3 * CHECK_CHUNK + 11;
+        let conn: Vec<usize> = (0..n).collect();
+        let offsets: Vec<usize> = (0..=n).collect();
+        let mut types = vec![1u8; n];
+        let mut bad_conn = conn.clone();
+        types[2 * CHECK_CHUNK + 5] = 200;
+        bad_conn[CHECK_CHUNK + 7] = n + 3;
+        let e = check_piece(Path::new("a"), 0, n, &bad_conn, &offsets, &types).unwrap_err();
+        let want = format!("cell {} refers to point {}", CHECK_CHUNK + 7, n + 3);
+        assert!(e.to_string().contains(&want), "{e}");
+        let e = check_piece(Path::new("a"), 0, n, &conn, &offsets, &types).unwrap_err();
+        assert!(e.to_string().contains("unknown cell type 200"), "{e}");
+        types[2 * CHECK_CHUNK + 5] = 1;
+        assert!(check_piece(Path::new("a"), 0, n, &conn, &offsets, &types).is_ok());
+    }
+
+    #[test]
     fn bad_cells_refused() {
         let mut m = Mesh::default();
         let pts = vec![[0.0; 3]; 3];
