@@ -131,8 +131,8 @@ impl FieldState {
     }
 
     /// Decodes and evaluates one increment with decoding split across threads: each parallel
-    /// chunk of entities reads its own tuples of stress and ε̄p ([`Increment::read_tuples`])
-    /// into a small per-thread buffer and evaluates them at once, so the stress array is never
+    /// chunk of entities reads its own tuples of stress and ε̄p
+    /// ([`Increment::read_tuples_using`]) into small per-thread buffers and evaluates them at once, so the stress array is never
     /// copied whole. For data whose ranges cost only their own bytes
     /// ([`Increment::ranges_are_direct`]: uncompressed binary); `stress` is left empty (the
     /// callers of this path do not need it). Same results and errors as
@@ -169,12 +169,12 @@ impl FieldState {
             .zip(self.eqps.par_chunks_mut(CHUNK))
             .enumerate()
             .map_init(
-                || (Vec::new(), Vec::new()),
-                |(sbuf, ebuf), (c, (((((h, vm), eta), theta), def), e))| {
+                || (Vec::new(), Vec::new(), Vec::new()),
+                |(sbuf, ebuf, bytes), (c, (((((h, vm), eta), theta), def), e))| {
                     let range = c * CHUNK..c * CHUNK + h.len();
                     let read = inc
-                        .read_tuples(&fields.stress, loc, range.clone(), sbuf)
-                        .and_then(|_| inc.read_tuples(eqps_name, loc, range, ebuf));
+                        .read_tuples_using(&fields.stress, loc, range.clone(), sbuf, bytes)
+                        .and_then(|_| inc.read_tuples_using(eqps_name, loc, range, ebuf, bytes));
                     if let Err(err) = read {
                         return Err((c, err));
                     }

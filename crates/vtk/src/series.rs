@@ -1117,7 +1117,7 @@ impl<'s> Increment<'s> {
     ) -> Result<&'s FieldInfo> {
         let info = self.series.field(name, Some(location))?;
         let n = self.count(location);
-        self.read_range(info, 0..n, out)?;
+        self.read_range(info, 0..n, out, None)?;
         Ok(info)
     }
 
@@ -1132,6 +1132,31 @@ impl<'s> Increment<'s> {
         range: Range<usize>,
         out: &mut Vec<f64>,
     ) -> Result<&'s FieldInfo> {
+        self.read_tuples_with(name, location, range, out, None)
+    }
+
+    /// [`Increment::read_tuples`] with the caller's byte buffer for decompression and base64,
+    /// so that threads reading ranges of one increment at the same time each reuse their own
+    /// buffer (nothing allocated per call).
+    pub fn read_tuples_using(
+        &self,
+        name: &str,
+        location: Location,
+        range: Range<usize>,
+        out: &mut Vec<f64>,
+        scratch: &mut Vec<u8>,
+    ) -> Result<&'s FieldInfo> {
+        self.read_tuples_with(name, location, range, out, Some(scratch))
+    }
+
+    fn read_tuples_with(
+        &self,
+        name: &str,
+        location: Location,
+        range: Range<usize>,
+        out: &mut Vec<f64>,
+        scratch: Option<&mut Vec<u8>>,
+    ) -> Result<&'s FieldInfo> {
         let info = self.series.field(name, Some(location))?;
         let n = self.count(location);
         if range.start > range.end || range.end > n {
@@ -1143,7 +1168,7 @@ impl<'s> Increment<'s> {
                 tuples: n,
             });
         }
-        self.read_range(info, range, out)?;
+        self.read_range(info, range, out, scratch)?;
         Ok(info)
     }
 
@@ -1213,16 +1238,28 @@ impl<'s> Increment<'s> {
         }
     }
 
-    fn read_range(&self, info: &FieldInfo, range: Range<usize>, out: &mut Vec<f64>) -> Result<()> {
+    fn read_range(
+        &self,
+        info: &FieldInfo,
+        range: Range<usize>,
+        out: &mut Vec<f64>,
+        caller_scratch: Option<&mut Vec<u8>>,
+    ) -> Result<()> {
         out.clear();
         let c = info.components;
-        // Threads reading ranges of one increment at the same time do not wait for each
-        // other: a second reader uses its own scratch (left empty by raw data).
+        // The caller's buffer, else the increment's; threads reading ranges of one increment
+        // at the same time do not wait for each other (a second reader gets its own buffer).
         let mut local = Vec::new();
-        let mut guard = self.scratch.try_lock().ok();
-        let scratch: &mut Vec<u8> = match guard.as_deref_mut() {
+        let mut guard;
+        let scratch: &mut Vec<u8> = match caller_scratch {
             Some(s) => s,
-            None => &mut local,
+            None => {
+                guard = self.scratch.try_lock().ok();
+                match guard.as_deref_mut() {
+                    Some(s) => s,
+                    None => &mut local,
+                }
+            }
         };
         let mut base = 0usize;
         let mut tmp = Vec::new();
