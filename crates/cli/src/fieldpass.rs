@@ -2,10 +2,15 @@
 //! buffers, in parallel.
 //!
 //! One fused kernel ([`ductrace_tensor::batch::measures_of`]) reads the decoded stress
-//! array and writes σ_h, σ_vm, η, θ̄ and a "defined" mask per entity, counting non-finite
-//! input on the way; no allocation per entity, no intermediate array of states. Decoding
-//! ([`FieldState::fetch`]) and evaluation ([`FieldState::evaluate`]) are separate steps so
-//! a pass can decode the next increment while it evaluates this one.
+//! array and writes σ_h, σ_vm, η, θ̄ (only with [`Lode::Compute`]) and a "defined" mask per
+//! entity, counting non-finite input on the way; no allocation per entity, no intermediate
+//! array of states. Two ways to feed it:
+//!
+//! * decoding ([`FieldState::fetch`]) and evaluation ([`FieldState::evaluate`]) as separate
+//!   steps, so a pass can decode the next increment while it evaluates this one (compressed
+//!   data, whose blocks are inflated in parallel);
+//! * decoding inside the evaluation ([`FieldState::load_direct`]): each parallel chunk reads
+//!   its own tuples (uncompressed binary data, whose ranges cost only their own bytes).
 
 use ductrace_tensor::{ComponentOrder, batch};
 use ductrace_track::fields::{EqpsSource, Fields};

@@ -267,12 +267,13 @@ pub fn field_damage(
     if let Some(inc) = &first
         && direct(inc)?
     {
-        let mut inc = first;
-        for (pos, info) in infos.iter().enumerate() {
+        let mut first = first;
+        for info in infos {
             let k = info.index;
-            let this = match inc.take() {
-                Some(i) if pos == 0 => i,
-                _ => series.increment(k)?,
+            // the first increment is already open; the others are opened in turn
+            let this = match first.take() {
+                Some(i) => i,
+                None => series.increment(k)?,
             };
             if direct(&this)? {
                 state.load_direct(series, &this, &fields, allow, lode)?;
