@@ -4,7 +4,7 @@
 
 use ductrace_plot::report::{
     DamageRow, DamageSection, FitSection, Footer, JobSection, ParameterRow, ReportCharts,
-    ReportData, ResidualRow, TableRow,
+    ReportData, ResidualKind, ResidualRow, TableRow,
 };
 use ductrace_plot::{
     DamageSeries, LocusChartData, LocusCurve, LocusPoint, NamedPath, PathData, damage_chart,
@@ -234,6 +234,7 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         fit: Some(FitSection {
             model: "invented exponential–Lode stand-in".into(),
             objective: "ln(ε_f,model(η_avg, θ̄_avg) / ε_f) per specimen".into(),
+            residual_kind: ResidualKind::LogRatio,
             parameters: vec![
                 ParameterRow {
                     name: "a".into(),

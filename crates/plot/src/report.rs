@@ -82,6 +82,8 @@ pub struct FitSection {
     pub objective: String,
     /// Parameters in the model's order, fixed ones included.
     pub parameters: Vec<ParameterRow>,
+    /// What the residuals are.
+    pub residual_kind: ResidualKind,
     /// Residual per specimen.
     pub residuals: Vec<ResidualRow>,
     /// √(Σ r_i² / m), the root-mean-square log residual (dimensionless).
@@ -107,6 +109,18 @@ pub struct ParameterRow {
     pub unit: Option<String>,
 }
 
+/// What the residual of a fit measures (the fit's objective).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ResidualKind {
+    /// r = ln(ε_f,model(η_avg, θ̄_avg) / ε_f,test): the model at the specimen's averages.
+    LogRatio,
+    /// r = −ln D, D the linear damage at the test's fracture instant along the specimen's path
+    /// (Johnson & Cook 1985); the model's ε_f is ε̄p where D reaches 1 on the path, undefined
+    /// where D stays below 1 up to the test's fracture. On a proportional path −ln D equals the
+    /// log ratio.
+    Damage,
+}
+
 /// The fit residual of one specimen.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ResidualRow {
@@ -114,9 +128,9 @@ pub struct ResidualRow {
     pub specimen: String,
     /// Test fracture strain ε_f (dimensionless).
     pub eqps_test: f64,
-    /// Model fracture strain; `None` where the model is undefined.
+    /// Model fracture strain; `None` where the model is undefined (see [`ResidualKind`]).
     pub eqps_model: Option<f64>,
-    /// Residual r = ln(ε_f,model / ε_f,test) (dimensionless); `None` where undefined.
+    /// Residual r (dimensionless, see [`ResidualKind`]); `None` where undefined.
     pub log_residual: Option<f64>,
 }
 
@@ -236,6 +250,7 @@ tbody tr:nth-child(even) td { background:#fafbfc; }
 .kv dt { color:var(--muted); }
 .kv dd { margin:0; }
 .none { color:var(--muted); font-style:italic; }
+.note { color:var(--muted); font-size:0.92em; max-width:46em; }
 figure { margin:18px 0; }
 figure svg { display:block; width:100%; height:auto; max-width:880px; border:1px solid var(--line);
   border-radius:4px; }
@@ -439,10 +454,15 @@ fn fit(h: &mut String, fit: Option<&FitSection>) {
         );
     }
     h.push_str("</tbody>\n</table>\n</div>\n");
-    h.push_str(
+    let r_label = match f.residual_kind {
+        ResidualKind::LogRatio => "ln(model/test)",
+        ResidualKind::Damage => "−ln D at fracture",
+    };
+    let _ = write!(
+        h,
         "<h3>Residual per specimen</h3>\n<div class=\"scroll\">\n<table class=\"residuals\">\n<thead>\n<tr>\
          <th class=\"name\">specimen</th><th>ε<sub>f</sub><small>test</small></th>\
-         <th>ε<sub>f</sub><small>model</small></th><th>r<small>ln(model/test)</small></th>\
+         <th>ε<sub>f</sub><small>model</small></th><th>r<small>{r_label}</small></th>\
          <th>model/test − 1<small>%</small></th></tr>\n</thead>\n<tbody>\n",
     );
     for r in &f.residuals {
@@ -461,7 +481,17 @@ fn fit(h: &mut String, fit: Option<&FitSection>) {
             num(pct.map_or_else(|| UNDEFINED.to_string(), |p| fixed(p, 1))),
         );
     }
-    h.push_str("</tbody>\n</table>\n</div>\n</section>\n");
+    h.push_str("</tbody>\n</table>\n</div>\n");
+    if f.residual_kind == ResidualKind::Damage {
+        h.push_str(
+            "<p class=\"note\">Damage objective: r = −ln D, D the linear damage at the test's \
+             fracture instant along the specimen's path; ε<sub>f</sub> model is ε̄<sub>p</sub> where \
+             D reaches 1 on the path, and — where D stays below 1 up to the test's fracture (the \
+             model predicts fracture later than the test). On a proportional path −ln D equals \
+             ln(model/test).</p>\n",
+        );
+    }
+    h.push_str("</section>\n");
 }
 
 fn damage(h: &mut String, d: Option<&DamageSection>) {

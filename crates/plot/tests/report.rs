@@ -5,7 +5,7 @@
 
 use ductrace_plot::report::{
     CAUTION, DamageRow, DamageSection, FitSection, Footer, INVENTED_NOTICE, JobSection,
-    ParameterRow, ReportCharts, ReportData, ResidualRow, TableRow, render,
+    ParameterRow, ReportCharts, ReportData, ResidualKind, ResidualRow, TableRow, render,
 };
 use ductrace_plot::{NamedPath, PathData, path_chart, state_plane_chart};
 
@@ -53,6 +53,7 @@ fn data(invented: bool) -> ReportData {
         fit: Some(FitSection {
             model: "test model".into(),
             objective: "log ratio".into(),
+            residual_kind: ResidualKind::LogRatio,
             parameters: vec![
                 ParameterRow {
                     name: "c1".into(),
@@ -258,6 +259,21 @@ fn fit_marks_fixed_parameters_and_non_convergence() {
         f.converged = false;
     }
     assert!(render(&d).contains("not converged"));
+}
+
+#[test]
+fn the_residual_column_says_what_the_objective_measured() {
+    let mut d = data(true);
+    let html = render(&d);
+    assert!(html.contains("<small>ln(model/test)</small>"));
+    assert!(!html.contains("Damage objective"));
+    if let Some(f) = d.fit.as_mut() {
+        f.residual_kind = ResidualKind::Damage;
+    }
+    let html = render(&d);
+    assert!(html.contains("<small>−ln D at fracture</small>"), "header");
+    assert!(html.contains("Damage objective: r = −ln D"), "note");
+    balanced(&html).unwrap();
 }
 
 #[test]

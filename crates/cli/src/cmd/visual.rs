@@ -4,7 +4,7 @@
 use ductrace_locus::{FractureLocus, Locus, ModelKind};
 use ductrace_plot::report::{
     DamageRow, DamageSection, FitSection, Footer, JobSection, ParameterRow, ReportCharts,
-    ReportData, ResidualRow, TableRow,
+    ReportData, ResidualKind, ResidualRow, TableRow,
 };
 use ductrace_plot::{
     Chart, DamageSeries, LocusChartData, LocusCurve, LocusPoint, NamedPath, PathData, damage_chart,
@@ -188,6 +188,11 @@ pub fn fit_section(v: &Value) -> FitSection {
             .unwrap_or("?")
             .to_string(),
         objective: v["objective"].as_str().unwrap_or("?").to_string(),
+        residual_kind: if v["objective"].as_str() == Some("damage") {
+            ResidualKind::Damage
+        } else {
+            ResidualKind::LogRatio
+        },
         parameters: order
             .iter()
             .filter_map(|n| {
