@@ -17,12 +17,22 @@ use crate::failure::Failure;
 use crate::locusfile;
 use crate::output;
 
-/// The bundled study, located from the source tree this binary was built from.
+/// The bundled study, located from the source tree this binary was built from (the `..`
+/// resolved, so messages and the report show the plain path).
 pub fn bundled_study() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
+    let mut path = PathBuf::new();
+    for c in Path::new(env!("CARGO_MANIFEST_DIR"))
         .join("../../fixtures/campaign/study.toml")
         .components()
-        .collect()
+    {
+        match c {
+            std::path::Component::ParentDir => {
+                path.pop();
+            }
+            other => path.push(other),
+        }
+    }
+    path
 }
 
 /// Prepares the output folder: created if missing; an existing non-empty one is refused
