@@ -183,14 +183,20 @@ impl FieldState {
                     if let Err(err) = read {
                         return Err((c, err));
                     }
-                    if sbuf.len() != h.len() * width || ebuf.len() != e.len() {
+                    // read_tuples returns exactly the range; checked so a slip cannot panic
+                    let (want, got) = if sbuf.len() != h.len() * width {
+                        (h.len() * width, sbuf.len())
+                    } else {
+                        (e.len(), ebuf.len())
+                    };
+                    if want != got {
                         return Err((
                             c,
                             ductrace_vtk::Error::SizeMismatch {
                                 path: series.path().to_path_buf(),
-                                what: format!("tuples of chunk {c}"),
-                                expected: (h.len() * width) as u64,
-                                found: sbuf.len() as u64,
+                                what: format!("values of chunk {c}"),
+                                expected: want as u64,
+                                found: got as u64,
                             },
                         ));
                     }

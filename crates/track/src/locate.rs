@@ -4,7 +4,6 @@
 //! coordinates in the files, those points minus the first increment's displacement.
 
 use ductrace_vtk::{Location, Series};
-use rayon::prelude::*;
 
 use crate::fields::Fields;
 use crate::{Result, TrackError};
@@ -68,23 +67,7 @@ impl Reference {
         }
         let entities = match fields.location {
             Location::Point => points.clone(),
-            // Centroids in parallel (the mean of each cell's points).
-            Location::Cell => (0..mesh.n_cells())
-                .into_par_iter()
-                .map(|c| {
-                    let ids = mesh.cell_points(c);
-                    let mut s = [0.0; 3];
-                    for &i in ids {
-                        if let Some(p) = points.get(i) {
-                            s[0] += p[0];
-                            s[1] += p[1];
-                            s[2] += p[2];
-                        }
-                    }
-                    let n = ids.len().max(1) as f64;
-                    [s[0] / n, s[1] / n, s[2] / n]
-                })
-                .collect(),
+            Location::Cell => mesh.centroids_with(&points),
         };
         let mut lower = [f64::INFINITY; 3];
         let mut upper = [f64::NEG_INFINITY; 3];

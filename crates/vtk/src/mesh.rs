@@ -79,19 +79,26 @@ impl Mesh {
     /// and mid-side alike; not the volume centroid of distorted or curved cells). A cell without
     /// points gets the origin. Computed in parallel.
     pub fn centroids(&self) -> Vec<[f64; 3]> {
+        self.centroids_with(&self.points)
+    }
+    /// [`Mesh::centroids`] with other coordinates for the same points (a reference
+    /// configuration, say); point ids beyond `points` are skipped.
+    pub fn centroids_with(&self, points: &[[f64; 3]]) -> Vec<[f64; 3]> {
         (0..self.n_cells())
             .into_par_iter()
-            .map(|c| self.centroid(c))
+            .map(|c| self.centroid_with(c, points))
             .collect()
     }
     /// Centroid of cell `cell` (see [`Mesh::centroids`]).
     ///
     /// Panics if `cell >= n_cells()`.
     pub fn centroid(&self, cell: usize) -> [f64; 3] {
+        self.centroid_with(cell, &self.points)
+    }
+    fn centroid_with(&self, cell: usize, points: &[[f64; 3]]) -> [f64; 3] {
         let ids = self.cell_points(cell);
         let mut s = [0.0; 3];
-        for &i in ids {
-            let p = self.points[i];
+        for p in ids.iter().filter_map(|&i| points.get(i)) {
             s[0] += p[0];
             s[1] += p[1];
             s[2] += p[2];
